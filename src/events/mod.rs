@@ -139,3 +139,143 @@ impl Default for InvisibleSet {
         Self::standard()
     }
 }
+
+/// Truth missing transverse momentum of an event: minus the vector sum of
+/// the transverse momenta of the visible final-state particles is NOT used;
+/// this is the vector sum (px, py) [GeV] of the final-state particles in the
+/// invisible set, which is what escapes the detector.
+pub fn truth_met_xy(event: &Event, invisible: &InvisibleSet) -> [f64; 2] {
+    let mut met = [0.0, 0.0];
+    for p in event.particles.iter().filter(|p| p.is_final()) {
+        if invisible.contains(p.id) {
+            met[0] += p.p4.px;
+            met[1] += p.p4.py;
+        }
+    }
+    met
+}
+
+// ---------------------------------------------------------------------------
+// CONTRACT of the reader (signatures used by later stages; bodies under
+// construction).
+// ---------------------------------------------------------------------------
+
+/// Errors of the event stage. Messages name the file, the event number and,
+/// where possible, the line number, and the rule broken.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum EventError {
+    /// Reading the file failed.
+    #[error("{path}: {source}")]
+    Io {
+        /// File.
+        path: std::path::PathBuf,
+        /// Underlying error.
+        source: std::io::Error,
+    },
+    /// The file breaks the LHEF format or a rule of the reader.
+    #[error("{0}")]
+    Format(String),
+}
+
+/// How several files of one sample are combined.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+pub enum FileCombination {
+    /// Independent runs of the same process (default): the sample's
+    /// cross-section is the event-count-weighted mean of the files'.
+    #[default]
+    IndependentRuns,
+    /// Different processes: the files' cross-sections add.
+    SeparateProcesses,
+}
+
+/// Options of the reader.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct ReadOptions {
+    /// Particles treated as invisible.
+    pub invisible: InvisibleSet,
+    /// How several files are combined.
+    pub combination: FileCombination,
+}
+
+/// Where a chunk of events comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct ChunkContext {
+    /// Index of the file in the sample (order given to [`EventSource::open`]).
+    pub file_index: usize,
+    /// Index (0-based, within its file) of the chunk's first event.
+    pub first_event_index: u64,
+}
+
+/// What the headers and `<init>` blocks of a sample's files say.
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize)]
+pub struct SampleInfo {
+    /// Names of the per-event weight variations, in the order of
+    /// [`Event::weights`]; empty when the sample has none.
+    pub weight_names: Vec<String>,
+}
+
+/// What a full pass over a sample found; turns weights into pb.
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
+pub struct SampleSummary {
+    /// Number of events read, all files.
+    pub n_events: u64,
+}
+
+impl SampleSummary {
+    /// Factor f [pb per unit of XWGTUP] for events of file `file_index` and
+    /// process `process_id`, such that Σ f·XWGTUP over any subset of events
+    /// is that subset's cross-section in pb under the sample's convention.
+    pub fn weight_to_pb(&self, _file_index: usize, _process_id: i32) -> f64 {
+        0.0
+    }
+
+    /// The sample's cross-section and its uncertainty [pb].
+    pub fn cross_section_pb(&self) -> (f64, f64) {
+        (0.0, 0.0)
+    }
+}
+
+/// A sample of one or more event files, opened and validated up to the
+/// first event, ready to stream.
+#[derive(Debug)]
+pub struct EventSource {
+    info: SampleInfo,
+}
+
+impl EventSource {
+    /// Opens every file, reads and validates its header and `<init>` block.
+    pub fn open<P: AsRef<std::path::Path>>(
+        paths: &[P],
+        _opts: ReadOptions,
+    ) -> Result<Self, EventError> {
+        let _ = paths;
+        Err(EventError::Format("event reader under construction".into()))
+    }
+
+    /// Header information of the sample.
+    pub fn info(&self) -> &SampleInfo {
+        &self.info
+    }
+
+    /// Streams every event once, in constant memory, on all cores.
+    ///
+    /// Files are cut into chunks at event boundaries that depend only on the
+    /// file content, never on the number of threads. `map` runs on worker
+    /// threads, one call per chunk; `consume` receives the results strictly
+    /// in file and chunk order. `progress` is called with the number of
+    /// bytes read so far. The first error in file order stops the pass.
+    pub fn for_each_chunk<T, M, C>(
+        self,
+        _map: M,
+        _consume: C,
+        _progress: Option<&(dyn Fn(u64) + Sync)>,
+    ) -> Result<SampleSummary, EventError>
+    where
+        T: Send,
+        M: Fn(&ChunkContext, &[Event]) -> T + Sync,
+        C: FnMut(T),
+    {
+        Err(EventError::Format("event reader under construction".into()))
+    }
+}
