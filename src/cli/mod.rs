@@ -4,6 +4,7 @@
 use clap::{Parser, Subcommand};
 
 mod inspect;
+mod recast;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
 /// compare the exclusion with direct detection. Results are estimates, not an
@@ -19,11 +20,14 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Yields, cut-flows, CLs and limits of one search for one event sample.
+    Recast(Box<recast::RecastArgs>),
 }
 
 /// Runs the parsed command.
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Recast(args) => recast::run(*args),
     }
 }

@@ -298,6 +298,22 @@ impl<'s> YieldAccumulator<'s> {
         summary: &SampleSummary,
         lumi_ifb: f64,
     ) -> Result<SampleYields, SearchError> {
+        self.finish_with(
+            |f, p| summary.weight_to_pb(f, p),
+            summary.n_events,
+            lumi_ifb,
+        )
+    }
+
+    /// As [`Self::finish`], with the weight-to-pb factor f(file index,
+    /// process id) [pb per unit of XWGTUP] given directly and `n_events` the
+    /// number of events read (for hand-set normalisations).
+    pub fn finish_with(
+        self,
+        weight_to_pb: impl Fn(usize, i32) -> f64,
+        n_events: u64,
+        lumi_ifb: f64,
+    ) -> Result<SampleYields, SearchError> {
         if !(lumi_ifb.is_finite() && lumi_ifb > 0.0) {
             return Err(SearchError::Normalisation(format!(
                 "luminosity must be finite and > 0, got {lumi_ifb} fb⁻¹"
@@ -312,7 +328,7 @@ impl<'s> YieldAccumulator<'s> {
         let mut hist_w = vec![0.0; DISTRIBUTIONS.len() * N_HIST_BINS];
         let mut hist_w2 = vec![0.0; DISTRIBUTIONS.len() * N_HIST_BINS];
         for g in &self.groups {
-            let f = summary.weight_to_pb(g.file_index, g.process_id);
+            let f = weight_to_pb(g.file_index, g.process_id);
             if !f.is_finite() {
                 return Err(SearchError::Normalisation(format!(
                     "weight-to-pb factor of file #{} process {} is {f}",
@@ -402,7 +418,7 @@ impl<'s> YieldAccumulator<'s> {
             search_title: self.search.title().to_string(),
             lumi_ifb,
             cross_section_pb,
-            n_events: summary.n_events,
+            n_events,
             n_weight_variations: n_var,
             regions,
             cutflows,
