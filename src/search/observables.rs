@@ -312,6 +312,25 @@ impl Observable {
         Err(unknown())
     }
 
+    /// Resolves a whole name as written in a cut, e.g. `jet1.pt` or
+    /// `min_dphi_jets_met(4)` (no spaces).
+    pub fn from_name(name: &str) -> Result<Observable, String> {
+        let (head, argument) = match name.split_once('(') {
+            Some((head, rest)) => {
+                let digits = rest.strip_suffix(')').unwrap_or(rest);
+                let n = digits.parse().map_err(|_| {
+                    format!("argument \"{digits}\" of \"{head}\" is not an integer")
+                })?;
+                (head, Some(n))
+            }
+            None => (name, None),
+        };
+        match head.split_once('.') {
+            Some((ident, attr)) => Observable::resolve(ident, Some(attr), argument),
+            None => Observable::resolve(head, None, argument),
+        }
+    }
+
     /// The name as written in a cut.
     pub fn name(&self) -> String {
         match self {
@@ -522,16 +541,7 @@ mod tests {
             "min_dphi_jets_met(4)",
         ];
         for name in names {
-            let (head, arg) = match name.split_once('(') {
-                Some((h, a)) => (h, Some(a.trim_end_matches(')').parse().unwrap())),
-                None => (name, None),
-            };
-            let (ident, attr) = match head.split_once('.') {
-                Some((i, a)) => (i, Some(a)),
-                None => (head, None),
-            };
-            let obs = Observable::resolve(ident, attr, arg).unwrap();
-            assert_eq!(obs.name(), name);
+            assert_eq!(Observable::from_name(name).unwrap().name(), name);
         }
     }
 
