@@ -238,6 +238,7 @@ pub struct Search {
     preselection: Vec<Cut>,
     regions: Vec<Region>,
     slots: SlotTable,
+    n_preselection_slots: usize,
     covariance: Option<DMatrix<f64>>,
     projection: Option<Projection>,
 }
@@ -388,6 +389,7 @@ impl Search {
             .iter()
             .map(|c| ctx.cut(c, &mut slots))
             .collect::<Result<Vec<_>, _>>()?;
+        let n_preselection_slots = slots.observables().len();
 
         if raw.regions.is_empty() {
             return Err(SearchError::DefinitionGlobal {
@@ -504,6 +506,7 @@ impl Search {
             preselection,
             regions,
             slots,
+            n_preselection_slots,
             covariance,
             projection: None,
         })
@@ -553,6 +556,11 @@ impl Search {
     /// The distinct observables the cuts use, by slot.
     pub fn observables(&self) -> &[Observable] {
         self.slots.observables()
+    }
+    /// Number of leading slots of [`Self::observables`] that the
+    /// preselection uses (the regions use only these and the later ones).
+    pub fn n_preselection_observables(&self) -> usize {
+        self.n_preselection_slots
     }
     /// Indices of the exclusive regions, in definition order.
     pub fn exclusive_indices(&self) -> Vec<usize> {

@@ -402,10 +402,6 @@ impl Acceptance {
         min_pt_gev: 0.0,
         max_abs_eta: f64::INFINITY,
     };
-
-    fn accepts(&self, p: &P4) -> bool {
-        p.pt() > self.min_pt_gev && p.abs_eta() < self.max_abs_eta
-    }
 }
 
 impl Default for Acceptance {
@@ -449,10 +445,23 @@ pub struct SelectedObjects {
 }
 
 fn select_into<'a>(out: &mut Vec<P4>, items: impl Iterator<Item = &'a P4>, acc: &Acceptance) {
+    // pT > min ⇔ pT² > min² (min ≥ 0); |η| < max ⇔ |pz| < pT·sinh(max),
+    // which avoids the inverse hyperbolic sine per object.
+    let min_pt2 = acc.min_pt_gev * acc.min_pt_gev;
+    let sinh_max = acc.max_abs_eta.sinh();
     out.clear();
-    out.extend(items.filter(|p| acc.accepts(p)).copied());
-    // The detector orders by decreasing pT; keep that order guaranteed.
-    out.sort_by(|a, b| b.pt().total_cmp(&a.pt()));
+    out.extend(
+        items
+            .filter(|p| {
+                let pt2 = p.pt2();
+                pt2 > min_pt2 && p.pz.abs() < pt2.sqrt() * sinh_max
+            })
+            .copied(),
+    );
+    // The detector orders by decreasing pT; restore the order if it did not.
+    if !out.is_sorted_by(|a, b| a.pt2() >= b.pt2()) {
+        out.sort_by(|a, b| b.pt2().total_cmp(&a.pt2()));
+    }
 }
 
 impl SelectedObjects {
@@ -483,7 +492,9 @@ impl SelectedObjects {
         self.leptons.clear();
         self.leptons.extend_from_slice(&self.electrons);
         self.leptons.extend_from_slice(&self.muons);
-        self.leptons.sort_by(|a, b| b.pt().total_cmp(&a.pt()));
+        if !self.electrons.is_empty() && !self.muons.is_empty() {
+            self.leptons.sort_by(|a, b| b.pt2().total_cmp(&a.pt2()));
+        }
         self.met_xy_gev = reco.met_xy_gev;
         self.met_gev = reco.met_gev;
         self.sum_et_gev = reco.sum_et_gev;

@@ -172,7 +172,8 @@ impl<'s> YieldAccumulator<'s> {
         }
     }
 
-    fn group(&mut self, file_index: usize, process_id: i32) -> &mut Group {
+    /// Index of the group of (file, process), created when new.
+    fn group_index(&mut self, file_index: usize, process_id: i32) -> usize {
         let hit = |g: &Group| g.file_index == file_index && g.process_id == process_id;
         if !self.groups.get(self.last).is_some_and(hit) {
             self.last = match self.groups.iter().position(hit) {
@@ -185,7 +186,7 @@ impl<'s> YieldAccumulator<'s> {
                 }
             };
         }
-        &mut self.groups[self.last]
+        self.last
     }
 
     /// Counts one reconstructed event (weights from `reco.weight` and
@@ -215,33 +216,41 @@ impl<'s> YieldAccumulator<'s> {
         if let Some(v) = reco.weights.iter().find(|v| !v.is_finite()) {
             return Err(bad(format!("weight variation must be finite, got {v}")));
         }
+        let gi = self.group_index(origin.file_index, origin.process_id);
         let search = self.search;
-        self.selected.fill(reco, search.objects());
-        for (value, obs) in self.values.iter_mut().zip(search.observables()) {
-            *value = obs.evaluate(&self.selected);
-        }
-        let values = std::mem::take(&mut self.values);
         let n_var = self.n_var;
-        let region_first = std::mem::take(&mut self.region_first);
-        let g = self.group(origin.file_index, origin.process_id);
+        let selected = &mut self.selected;
+        let values = &mut self.values;
+        let g = &mut self.groups[gi];
+        selected.fill(reco, search.objects());
+        // Observables of the preselection first; the rest only for events
+        // that pass it.
+        let n_pre_obs = search.n_preselection_observables();
+        let observables = search.observables();
+        for (value, obs) in values.iter_mut().zip(observables).take(n_pre_obs) {
+            *value = obs.evaluate(selected);
+        }
         g.bump(0, w);
         let mut pass = true;
         for (k, cut) in search.preselection().iter().enumerate() {
-            if !cut.passes(&values) {
+            if !cut.passes(values) {
                 pass = false;
                 break;
             }
             g.bump(1 + k, w);
         }
         if pass {
+            for (value, obs) in values.iter_mut().zip(observables).skip(n_pre_obs) {
+                *value = obs.evaluate(selected);
+            }
             for (r, region) in search.regions().iter().enumerate() {
                 let mut in_region = true;
                 for (k, cut) in region.cuts().iter().enumerate() {
-                    if !cut.passes(&values) {
+                    if !cut.passes(values) {
                         in_region = false;
                         break;
                     }
-                    g.bump(region_first[r] + k, w);
+                    g.bump(self.region_first[r] + k, w);
                 }
                 if in_region {
                     for (cell, wv) in g.var[r * n_var..(r + 1) * n_var]
@@ -262,8 +271,6 @@ impl<'s> YieldAccumulator<'s> {
         g.fill(1, Some(reco.met_gev), w);
         g.fill(2, truth.leading_parton_pt_gev, w);
         g.fill(3, reco_jet1, w);
-        self.values = values;
-        self.region_first = region_first;
         Ok(())
     }
 
@@ -272,8 +279,8 @@ impl<'s> YieldAccumulator<'s> {
     /// threads.
     pub fn merge(&mut self, other: YieldAccumulator<'_>) {
         for g in &other.groups {
-            let target = self.group(g.file_index, g.process_id);
-            target.add(g);
+            let i = self.group_index(g.file_index, g.process_id);
+            self.groups[i].add(g);
         }
     }
 
