@@ -27,7 +27,7 @@ fn events(n: usize) -> Vec<Reco> {
                     p4: P4::from_pt_eta_phi_m(
                         30.0 + 500.0 * next(),
                         5.0 * next() - 2.5,
-                        6.28 * next() - 3.14,
+                        std::f64::consts::TAU * next() - std::f64::consts::PI,
                         5.0,
                     ),
                     b_tagged: next() < 0.05,
@@ -35,7 +35,7 @@ fn events(n: usize) -> Vec<Reco> {
                 .collect();
             jets.sort_by(|a, b| b.p4.pt().total_cmp(&a.p4.pt()));
             let met = 150.0 + 900.0 * next();
-            let phi = 6.28 * next() - 3.14;
+            let phi = std::f64::consts::TAU * next() - std::f64::consts::PI;
             Reco {
                 jets,
                 met_xy_gev: [met * phi.cos(), met * phi.sin()],
