@@ -49,12 +49,10 @@ impl Flavour {
 pub struct Candidate {
     /// Four-momentum [GeV].
     pub p4: P4,
-    /// Pseudorapidity of `p4` (cached).
-    pub eta: f64,
-    /// Azimuth of `p4` [rad] (cached).
-    pub phi: f64,
     /// Heaviest flavour among the merged partons.
     pub flavour: Flavour,
+    /// Pseudorapidity and azimuth [rad] of `p4`, filled by [`merge`].
+    eta_phi: (f64, f64),
 }
 
 impl Candidate {
@@ -62,15 +60,19 @@ impl Candidate {
     pub fn new(p4: P4, flavour: Flavour) -> Self {
         Self {
             p4,
-            eta: p4.eta(),
-            phi: p4.phi(),
             flavour,
+            eta_phi: (0.0, 0.0),
         }
     }
 
+    fn with_angles(mut self) -> Self {
+        self.eta_phi = (self.p4.eta(), self.p4.phi());
+        self
+    }
+
     fn delta_r2(&self, other: &Self) -> f64 {
-        let deta = self.eta - other.eta;
-        let dphi = crate::kinematics::delta_phi(self.phi, other.phi);
+        let deta = self.eta_phi.0 - other.eta_phi.0;
+        let dphi = crate::kinematics::delta_phi(self.eta_phi.1, other.eta_phi.1);
         deta * deta + dphi * dphi
     }
 }
@@ -78,8 +80,11 @@ impl Candidate {
 /// Merges candidates in place by the algorithm of the module docs.
 /// Allocation-free: works within `candidates`.
 pub fn merge(candidates: &mut Vec<Candidate>, radius: f64) {
-    if radius <= 0.0 {
+    if radius <= 0.0 || candidates.len() < 2 {
         return;
+    }
+    for c in candidates.iter_mut() {
+        *c = c.with_angles();
     }
     let r2 = radius * radius;
     loop {
@@ -96,7 +101,7 @@ pub fn merge(candidates: &mut Vec<Candidate>, radius: f64) {
         let other = candidates.remove(j);
         let merged = candidates[i].p4 + other.p4;
         let flavour = candidates[i].flavour.max(other.flavour);
-        candidates[i] = Candidate::new(merged, flavour);
+        candidates[i] = Candidate::new(merged, flavour).with_angles();
     }
 }
 

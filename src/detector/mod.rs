@@ -54,6 +54,7 @@
 
 pub mod efficiency;
 pub mod jets;
+pub mod measured;
 pub mod met;
 pub mod profile;
 pub mod resolution;
@@ -116,6 +117,7 @@ use std::cell::RefCell;
 
 use crate::events::{Event, InvisibleSet, ParticleClass};
 use jets::{Candidate, Flavour};
+use measured::Measured;
 use resolution::Resolution;
 
 /// Errors of the detector stage.
@@ -193,15 +195,15 @@ fn reconstruct_object<R: Resolution, G: rand::Rng + ?Sized>(
     response: &ObjectResponse<R>,
     true_p4: &P4,
     rng: &mut G,
-) -> Option<P4> {
-    let p4 = resolution::smear_magnitude(&response.resolution, true_p4, rng)?;
-    let p4 = resolution::smear_direction(
-        &p4,
+) -> Option<Measured> {
+    let object = resolution::smear_magnitude(&response.resolution, &Measured::new(*true_p4), rng)?;
+    let object = resolution::smear_direction(
+        &object,
         response.eta_resolution,
         response.phi_resolution_rad,
         rng,
     );
-    let (pt, abs_eta) = (p4.pt(), p4.abs_eta());
+    let (pt, abs_eta) = (object.pt_gev, object.abs_eta);
     let in_eta = response
         .abs_eta_ranges
         .iter()
@@ -214,7 +216,25 @@ fn reconstruct_object<R: Resolution, G: rand::Rng + ?Sized>(
         (None, Some(t)) => t.lookup(pt, abs_eta),
         (None, None) => 0.0,
     };
-    efficiency::pass(eff, rng).then_some(p4)
+    efficiency::pass(eff, rng).then_some(object)
+}
+
+/// Running p_T^miss and ΣE_T over the objects in the calorimeter
+/// acceptance.
+struct MetSum {
+    max_abs_eta: f64,
+    met_xy_gev: [f64; 2],
+    sum_et_gev: f64,
+}
+
+impl MetSum {
+    fn add(&mut self, object: &Measured) {
+        if object.abs_eta < self.max_abs_eta {
+            self.met_xy_gev[0] -= object.p4.px;
+            self.met_xy_gev[1] -= object.p4.py;
+            self.sum_et_gev += object.et_gev();
+        }
+    }
 }
 
 /// Charge of a charged lepton from its PDG id (11, 13, 15 are the negative
@@ -270,10 +290,15 @@ impl Detector {
         out.weights.extend_from_slice(&event.weights);
         out.weight = event.weight;
 
+        let mut sum = MetSum {
+            max_abs_eta: profile.met.max_abs_eta,
+            met_xy_gev: [0.0, 0.0],
+            sum_et_gev: 0.0,
+        };
         CANDIDATES.with_borrow_mut(|candidates| {
             candidates.clear();
             for p in event.particles.iter().filter(|p| p.is_final()) {
-                let (list, response_p4) = match self.invisible.classify(p.id) {
+                let (list, object) = match self.invisible.classify(p.id) {
                     ParticleClass::Parton => {
                         candidates.push(Candidate::new(p.p4, Flavour::of_parton(p.id)));
                         continue;
@@ -296,20 +321,25 @@ impl Detector {
                     ),
                     ParticleClass::Invisible | ParticleClass::Other => continue,
                 };
-                if let Some(p4) = response_p4 {
+                if let Some(object) = object {
+                    sum.add(&object);
                     let charge = if p.id.abs() == 22 {
                         0
                     } else {
                         lepton_charge(p.id)
                     };
-                    list.push(RecoObject { p4, charge });
+                    list.push(RecoObject {
+                        p4: object.p4,
+                        charge,
+                    });
                 }
             }
             jets::merge(candidates, profile.jet_merging.radius);
+            let b = &profile.btag;
             for c in candidates.iter() {
-                if let Some(p4) = reconstruct_object(&profile.jets, &c.p4, &mut rng) {
-                    let b = &profile.btag;
-                    let tag_probability = if p4.abs_eta() < b.max_abs_eta {
+                if let Some(jet) = reconstruct_object(&profile.jets, &c.p4, &mut rng) {
+                    sum.add(&jet);
+                    let tag_probability = if jet.abs_eta < b.max_abs_eta {
                         match c.flavour {
                             Flavour::Bottom => b.efficiency_b,
                             Flavour::Charm => b.mistag_c,
@@ -319,7 +349,10 @@ impl Detector {
                         0.0
                     };
                     let b_tagged = efficiency::pass(tag_probability, &mut rng);
-                    out.jets.push(Jet { p4, b_tagged });
+                    out.jets.push(Jet {
+                        p4: jet.p4,
+                        b_tagged,
+                    });
                 }
             }
         });
@@ -334,19 +367,11 @@ impl Detector {
             sort_by_pt(list, |o| &o.p4);
         }
 
-        let max_abs_eta = profile.met.max_abs_eta;
-        let mut met = [0.0, 0.0];
-        let mut sum_et = 0.0;
-        let objects = out.jets.iter().map(|j| &j.p4).chain(
-            [&out.electrons, &out.muons, &out.taus, &out.photons]
-                .into_iter()
-                .flat_map(|l| l.iter().map(|o| &o.p4)),
-        );
-        for p4 in objects.filter(|p4| p4.abs_eta() < max_abs_eta) {
-            met[0] -= p4.px;
-            met[1] -= p4.py;
-            sum_et += p4.et();
-        }
+        let MetSum {
+            met_xy_gev: mut met,
+            sum_et_gev: sum_et,
+            ..
+        } = sum;
         let sigma =
             met::soft_term_sigma(sum_et, profile.met.soft_a_gev, profile.met.soft_b_sqrt_gev);
         if sigma > 0.0 {

@@ -7,6 +7,7 @@
 use rand::Rng;
 use rand_distr::{Distribution, StandardNormal};
 
+use super::measured::Measured;
 use super::profile::{CaloRegion, EtaRegion, TrackerRegion};
 use crate::kinematics::P4;
 
@@ -60,16 +61,17 @@ pub fn tracker_relative_sigma(pt_gev: f64, a: f64, b_per_gev: f64) -> f64 {
     (a * a + bp * bp).sqrt()
 }
 
-/// A resolution region that can give σ/x for a four-momentum.
+/// A resolution region that can give σ/x for an object.
 pub trait Resolution: EtaRegion {
-    /// Relative resolution of the measured quantity (E or pT) for `p4`.
-    fn relative_sigma(&self, p4: &P4) -> f64;
+    /// Relative resolution of the measured quantity (E or pT) for an
+    /// object of energy `e_gev` and transverse momentum `pt_gev` [GeV].
+    fn relative_sigma(&self, e_gev: f64, pt_gev: f64) -> f64;
 }
 
 impl Resolution for CaloRegion {
-    fn relative_sigma(&self, p4: &P4) -> f64 {
+    fn relative_sigma(&self, e_gev: f64, _pt_gev: f64) -> f64 {
         calo_relative_sigma(
-            p4.e,
+            e_gev,
             self.stochastic_sqrt_gev,
             self.noise_gev,
             self.constant,
@@ -78,8 +80,8 @@ impl Resolution for CaloRegion {
 }
 
 impl Resolution for TrackerRegion {
-    fn relative_sigma(&self, p4: &P4) -> f64 {
-        tracker_relative_sigma(p4.pt(), self.a, self.b_per_gev)
+    fn relative_sigma(&self, _e_gev: f64, pt_gev: f64) -> f64 {
+        tracker_relative_sigma(pt_gev, self.a, self.b_per_gev)
     }
 }
 
@@ -92,46 +94,48 @@ pub fn region_for<R: EtaRegion>(regions: &[R], abs_eta: f64) -> Option<&R> {
     })
 }
 
-/// Smears the magnitude of `p4` at fixed direction: all four components
-/// are multiplied by 1 + (σ/x)·g with g standard normal, which keeps η, φ
-/// and m/E. Returns `None` when the object is outside every region or the
-/// factor is ≤ 0 (the object is lost). No random number is drawn when
-/// σ/x = 0, so a perfect resolution returns `p4` unchanged.
+/// Smears the magnitude of an object at fixed direction: all four
+/// components are multiplied by 1 + (σ/x)·g with g standard normal, which
+/// keeps η, φ and m/E. The region is chosen by the object's true |η|.
+/// Returns `None` when the object is outside every region or the factor is
+/// ≤ 0 (the object is lost). No random number is drawn when σ/x = 0, so a
+/// perfect resolution returns the object unchanged.
 pub fn smear_magnitude<R: Resolution, G: Rng + ?Sized>(
     regions: &[R],
-    p4: &P4,
+    object: &Measured,
     rng: &mut G,
-) -> Option<P4> {
-    let region = region_for(regions, p4.abs_eta())?;
-    let sigma = region.relative_sigma(p4);
+) -> Option<Measured> {
+    let region = region_for(regions, object.abs_eta)?;
+    let sigma = region.relative_sigma(object.p4.e, object.pt_gev);
     if sigma == 0.0 {
-        return Some(*p4);
+        return Some(*object);
     }
     let g: f64 = StandardNormal.sample(rng);
     let factor = 1.0 + sigma * g;
-    (factor > 0.0).then(|| p4.scaled(factor))
+    (factor > 0.0).then(|| object.scaled(factor))
 }
 
 /// Gaussian smearing of the direction: η → η + σ_η g₁, φ → φ + σ_φ g₂, at
-/// fixed pT and mass. Returns `p4` unchanged (and draws nothing) when both
-/// widths are 0.
+/// fixed pT and mass. Returns the object unchanged (and draws nothing)
+/// when both widths are 0.
 pub fn smear_direction<G: Rng + ?Sized>(
-    p4: &P4,
+    object: &Measured,
     eta_sigma: f64,
     phi_sigma_rad: f64,
     rng: &mut G,
-) -> P4 {
+) -> Measured {
     if eta_sigma == 0.0 && phi_sigma_rad == 0.0 {
-        return *p4;
+        return *object;
     }
+    let p4 = &object.p4;
     let g1: f64 = StandardNormal.sample(rng);
     let g2: f64 = StandardNormal.sample(rng);
-    P4::from_pt_eta_phi_m(
-        p4.pt(),
+    Measured::new(P4::from_pt_eta_phi_m(
+        object.pt_gev,
         p4.eta() + eta_sigma * g1,
         p4.phi() + phi_sigma_rad * g2,
         p4.m().max(0.0),
-    )
+    ))
 }
 
 #[cfg(test)]
