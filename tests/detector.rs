@@ -764,3 +764,34 @@ fn variation_constructor_validates() {
     assert!(Variation::new(0.0, 1.5).is_err());
     assert_eq!(Variation::new(0.0, 0.0).unwrap(), Variation::NOMINAL);
 }
+
+#[test]
+fn variation_parses_and_round_trips() {
+    let v: Variation = "resolution=+0.2,efficiency=-0.05".parse().unwrap();
+    assert_eq!(
+        v,
+        Variation {
+            resolution_shift: 0.2,
+            efficiency_shift: -0.05
+        }
+    );
+    assert_eq!(v.to_string().parse::<Variation>().unwrap(), v);
+    assert_eq!(
+        "efficiency=0.1"
+            .parse::<Variation>()
+            .unwrap()
+            .resolution_shift,
+        0.0
+    );
+    assert_eq!("nominal".parse::<Variation>().unwrap(), Variation::NOMINAL);
+    for (bad, rule) in [
+        ("resolution=x", "not a number"),
+        ("scale=0.1", "unknown key"),
+        ("resolution=0.1,resolution=0.2", "twice"),
+        ("resolution", "expected"),
+        ("resolution=-1.5", "> -1"),
+    ] {
+        let e = bad.parse::<Variation>().unwrap_err().to_string();
+        assert!(e.contains(rule), "{bad}: {e}");
+    }
+}

@@ -127,6 +127,9 @@ pub enum DetectorError {
     /// The profile breaks a rule (message names file, key and rule).
     #[error("{0}")]
     Profile(String),
+    /// A detector variation is malformed (message names the rule and value).
+    #[error("{0}")]
+    Variation(String),
     /// The profile file could not be read.
     #[error("detector profile {}: cannot read: {source}", path.display())]
     Io {
@@ -158,12 +161,12 @@ impl Variation {
     /// `efficiency_shift` in [−1, 1].
     pub fn new(resolution_shift: f64, efficiency_shift: f64) -> Result<Self, DetectorError> {
         if !(resolution_shift.is_finite() && resolution_shift > -1.0) {
-            return Err(DetectorError::Profile(format!(
+            return Err(DetectorError::Variation(format!(
                 "detector variation: resolution shift must be finite and > -1, got {resolution_shift}"
             )));
         }
         if !(-1.0..=1.0).contains(&efficiency_shift) {
-            return Err(DetectorError::Profile(format!(
+            return Err(DetectorError::Variation(format!(
                 "detector variation: efficiency shift must be in [-1, 1], got {efficiency_shift}"
             )));
         }
@@ -171,6 +174,56 @@ impl Variation {
             resolution_shift,
             efficiency_shift,
         })
+    }
+}
+
+impl std::str::FromStr for Variation {
+    type Err = DetectorError;
+
+    /// Parses `nominal`, or comma-separated `resolution=X` and
+    /// `efficiency=Y` (either may be left out, meaning 0), e.g.
+    /// `resolution=+0.2,efficiency=-0.05`. Validated as by [`Variation::new`].
+    fn from_str(text: &str) -> Result<Self, Self::Err> {
+        let text = text.trim();
+        if text == "nominal" {
+            return Ok(Self::NOMINAL);
+        }
+        let mut shifts = [None, None];
+        for item in text.split(',') {
+            let bad = |rule: &str| {
+                DetectorError::Variation(format!(
+                    "detector variation {text:?}: item {item:?}: {rule}"
+                ))
+            };
+            let (key, value) = item
+                .split_once('=')
+                .ok_or_else(|| bad("expected `resolution=X` or `efficiency=Y`"))?;
+            let slot = match key.trim() {
+                "resolution" => 0,
+                "efficiency" => 1,
+                _ => return Err(bad("unknown key, expected `resolution` or `efficiency`")),
+            };
+            if shifts[slot].is_some() {
+                return Err(bad("key given twice"));
+            }
+            let value: f64 = value
+                .trim()
+                .parse()
+                .map_err(|_| bad("value is not a number"))?;
+            shifts[slot] = Some(value);
+        }
+        Self::new(shifts[0].unwrap_or(0.0), shifts[1].unwrap_or(0.0))
+    }
+}
+
+impl std::fmt::Display for Variation {
+    /// The form read by [`str::parse`]: `resolution=+0.2,efficiency=-0.05`.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "resolution={:+},efficiency={:+}",
+            self.resolution_shift, self.efficiency_shift
+        )
     }
 }
 
