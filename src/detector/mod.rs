@@ -44,6 +44,17 @@
 //! of the invisible particles' pT ([`crate::events::truth_met_xy`]) up to
 //! rounding, provided the incoming partons carry no transverse momentum.
 //!
+//! # Limits of the approximation
+//!
+//! Jets are partons: there is no parton shower, hadronisation, underlying
+//! event or pile-up, so no jet substructure, no out-of-cone losses beyond
+//! the merging, and no extra soft jets. There is no overlap removal or
+//! isolation between objects (at parton level leptons and partons are
+//! distinct particles), no fake leptons or photons from jets, and a tau
+//! lepton is reconstructed with its full momentum (the neutrinos of its
+//! decay are not simulated; the profile's tau efficiency carries the
+//! hadronic branching fraction).
+//!
 //! # Randomness
 //!
 //! Every event gets its own generator, seeded from (seed, file index,
