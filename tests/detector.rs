@@ -795,3 +795,65 @@ fn variation_parses_and_round_trips() {
         assert!(e.contains(rule), "{bad}: {e}");
     }
 }
+
+/// Opens every acceptance and efficiency of a profile, so that every object
+/// within the resolution regions is seen.
+fn fully_efficient(mut p: DetectorProfile) -> DetectorProfile {
+    fn open<R>(o: &mut recoil::detector::ObjectResponse<R>, upper: f64) {
+        o.min_pt_gev = 0.0;
+        o.abs_eta_ranges = vec![[0.0, upper]];
+        o.efficiency = Some(1.0);
+        o.efficiency_table = None;
+    }
+    for o in [&mut p.jets, &mut p.electrons, &mut p.taus, &mut p.photons] {
+        let upper = o.resolution.last().map_or(1.0, |r| r.max_abs_eta);
+        open(o, upper);
+    }
+    let upper = p.muons.resolution.last().map_or(1.0, |r| r.max_abs_eta);
+    open(&mut p.muons, upper);
+    p
+}
+
+#[test]
+fn shipped_generic_profile_resolutions() {
+    let profile = fully_efficient(generic());
+    let det = Detector::new(profile.clone(), InvisibleSet::standard(), 14);
+    let e = 200.0;
+    type Pick = fn(&Reco) -> Option<f64>;
+    let calo: [(i32, &[recoil::detector::CaloRegion], Pick); 4] = [
+        (21, &profile.jets.resolution, |r| {
+            r.jets.first().map(|j| j.p4.e)
+        }),
+        (11, &profile.electrons.resolution, |r| {
+            r.electrons.first().map(|o| o.p4.e)
+        }),
+        (-15, &profile.taus.resolution, |r| {
+            r.taus.first().map(|o| o.p4.e)
+        }),
+        (22, &profile.photons.resolution, |r| {
+            r.photons.first().map(|o| o.p4.e)
+        }),
+    ];
+    for (id, regions, pick) in calo {
+        for r in regions {
+            let eta = 0.5 * (r.min_abs_eta + r.max_abs_eta);
+            // Calorimeter form written out here, independently of the library:
+            // σ_E/E = √(S²/E + N²/E² + C²) (REFERENCES.md §6).
+            let expected = (r.stochastic_sqrt_gev.powi(2) / e
+                + (r.noise_gev / e).powi(2)
+                + r.constant.powi(2))
+            .sqrt();
+            let xs = ratios(&det, id, at_energy(e, eta, -0.4), pick, e);
+            check_std(&format!("generic id {id}, eta {eta}"), &xs, expected);
+        }
+    }
+    for r in &profile.muons.resolution {
+        let eta = 0.5 * (r.min_abs_eta + r.max_abs_eta);
+        let pt = 300.0;
+        // Tracker form σ_pT/pT = √(a² + (b·pT)²), written out here.
+        let expected = (r.a.powi(2) + (r.b_per_gev * pt).powi(2)).sqrt();
+        let p4 = P4::from_pt_eta_phi_m(pt, -eta, 2.0, 0.105_658);
+        let xs = ratios(&det, 13, p4, |r| r.muons.first().map(|m| m.p4.pt()), pt);
+        check_std(&format!("generic muon, eta {eta}"), &xs, expected);
+    }
+}

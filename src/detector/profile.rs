@@ -204,7 +204,10 @@ pub struct MetResponse {
 ///
 /// Built only by [`Self::from_toml_str`], [`Self::from_toml_file`],
 /// [`Self::truth`] (also [`Default`]) and [`Self::varied`], all of which
-/// produce valid profiles.
+/// produce valid profiles. Deserializing with serde directly, or editing the
+/// public fields, skips the checks: call [`Self::validate`] afterwards.
+/// [`crate::detector::Detector`] never panics on an invalid profile, but its
+/// results are then meaningless.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct DetectorProfile {
