@@ -838,7 +838,7 @@ fn shipped_generic_profile_resolutions() {
         for r in regions {
             let eta = 0.5 * (r.min_abs_eta + r.max_abs_eta);
             // Calorimeter form written out here, independently of the library:
-            // σ_E/E = √(S²/E + N²/E² + C²) (REFERENCES.md §6).
+            // σ_E/E = √(S²/E + N²/E² + C²) (common practice).
             let expected = (r.stochastic_sqrt_gev.powi(2) / e
                 + (r.noise_gev / e).powi(2)
                 + r.constant.powi(2))

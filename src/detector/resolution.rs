@@ -24,8 +24,8 @@ use crate::kinematics::P4;
 /// # References
 /// C. W. Fabjan, F. Gianotti, "Calorimetry for particle physics",
 /// Rev. Mod. Phys. 75 (2003) 1243, Eq. (1) (the standard parametrisation;
-/// from memory). Values of a general-purpose LHC detector:
-/// REFERENCES.md §6.
+/// from memory). Values of a general-purpose LHC detector are common
+/// practice (see `recasts/detectors/generic-13tev.toml`).
 pub fn calo_relative_sigma(
     e_gev: f64,
     stochastic_sqrt_gev: f64,
