@@ -85,7 +85,7 @@ impl FromStr for MediatorKind {
 /// For spin-1 mediators `g_q` is universal over the six quarks and `g_l`
 /// over the three charged leptons and neutrinos; for spin-0 mediators the
 /// coupling to a fermion f is g · y_f with the Yukawa coupling
-/// y_f = √2 m_f / v (arXiv:1507.00966, Sec. 2).
+/// y_f = √2 m_f / v (arXiv:1507.00966).
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Couplings {
     g_q: f64,
@@ -234,7 +234,7 @@ fn beta(m_gev: f64, m_f_gev: f64) -> f64 {
 /// `m_gev`, `m_f_gev` and the result in GeV.
 ///
 /// # References
-/// D. Abercrombie et al., arXiv:1507.00966, Eqs. (2.3)–(2.4).
+/// D. Abercrombie et al., arXiv:1507.00966 (REFERENCES §3; equation numbers not re-read).
 pub fn spin1_fermion_width_gev(
     kind: MediatorKind,
     n_c: f64,
@@ -264,7 +264,7 @@ pub fn spin1_fermion_width_gev(
 /// `m_gev`, `m_f_gev` and the result in GeV.
 ///
 /// # References
-/// D. Abercrombie et al., arXiv:1507.00966, Eqs. (2.6)–(2.7).
+/// D. Abercrombie et al., arXiv:1507.00966 (REFERENCES §3; equation numbers not re-read).
 fn spin0_fermion_width_gev(kind: MediatorKind, pre_gev: f64, m_gev: f64, m_f_gev: f64) -> f64 {
     let b = beta(m_gev, m_f_gev);
     match kind {
@@ -282,7 +282,7 @@ fn spin0_fermion_width_gev(kind: MediatorKind, pre_gev: f64, m_gev: f64, m_f_gev
 /// Heavy-top limits: f_φ → 2/3, f_a → 1.
 ///
 /// # References
-/// D. Abercrombie et al., arXiv:1507.00966, Eq. (2.8); continuation below
+/// D. Abercrombie et al., arXiv:1507.00966 (REFERENCES §3); continuation below
 /// τ = 1 as in M. Spira, hep-ph/9705337, Eq. (47) (from memory).
 pub fn gluon_loop_function(kind: MediatorKind, tau: f64) -> Complex<f64> {
     let f = if tau >= 1.0 {
@@ -381,7 +381,7 @@ impl Mediator {
     /// `m_gev` and the result in GeV.
     ///
     /// # References
-    /// D. Abercrombie et al., arXiv:1507.00966, Eqs. (2.3)–(2.8).
+    /// D. Abercrombie et al., arXiv:1507.00966 (REFERENCES §3).
     pub fn partial_width_at_gev(&self, channel: Channel, m_gev: f64) -> f64 {
         if !(m_gev.is_finite() && m_gev > 0.0) {
             return 0.0;

@@ -17,11 +17,17 @@
 //! - [`curve`]: a collider exclusion boundary (m_χ, M_limit) turned into a
 //!   limit curve σ(m_χ) in the DM–nucleon plane.
 
+pub mod curve;
 pub mod mediator;
+pub mod nucleon;
+pub mod rescale;
 
+pub use curve::{BoundaryPoint, ColliderCurve, CurvePoint, collider_curve};
 pub use mediator::{
     Channel, Couplings, FermionMasses, Mediator, MediatorKind, WIDE_WIDTH_OVER_MASS,
 };
+pub use nucleon::{Nucleon, NucleonCrossSection, NucleonParams, ScatteringType};
+pub use rescale::{CouplingLimit, CouplingPath, ProductionRegime, SignalScale};
 
 /// Errors of the model stage. Each message names the quantity, the rule,
 /// the value and its unit.
