@@ -140,3 +140,89 @@ pub fn collider_curve(
         points,
     })
 }
+
+/// Column names of a boundary table.
+pub const BOUNDARY_COLUMNS: [&str; 3] = ["m_dm_gev", "m_med_limit_gev", "m_med_limit_exp_gev"];
+
+/// Reads a collider exclusion boundary from CSV with a header row:
+/// `m_dm_gev,m_med_limit_gev` and optionally `m_med_limit_exp_gev`
+/// (`m_med_limit_obs_gev` is accepted for the observed column), masses in
+/// GeV. An empty expected cell means "not known". Every row must parse;
+/// `source_name` names the input in error messages.
+pub fn read_boundary_csv<R: std::io::Read>(
+    reader: R,
+    source_name: &str,
+) -> Result<Vec<BoundaryPoint>, ModelError> {
+    let err = |line: u64, message: String| ModelError::BoundaryFile {
+        source_name: source_name.to_string(),
+        line,
+        message,
+    };
+    let mut rdr = csv::ReaderBuilder::new()
+        .trim(csv::Trim::All)
+        .from_reader(reader);
+    let headers = rdr.headers().map_err(|e| err(1, e.to_string()))?.clone();
+    let find = |names: &[&str]| headers.iter().position(|h| names.contains(&h));
+    let i_dm = find(&[BOUNDARY_COLUMNS[0]]).ok_or_else(|| {
+        err(
+            1,
+            format!("missing column '{}' in header", BOUNDARY_COLUMNS[0]),
+        )
+    })?;
+    let i_obs = find(&[BOUNDARY_COLUMNS[1], "m_med_limit_obs_gev"]).ok_or_else(|| {
+        err(
+            1,
+            format!("missing column '{}' in header", BOUNDARY_COLUMNS[1]),
+        )
+    })?;
+    let i_exp = find(&[BOUNDARY_COLUMNS[2]]);
+    let mut out = Vec::new();
+    for (k, rec) in rdr.records().enumerate() {
+        let line = rec
+            .as_ref()
+            .ok()
+            .and_then(|r| r.position())
+            .map_or(k as u64 + 2, |p| p.line());
+        let rec = rec.map_err(|e| err(line, e.to_string()))?;
+        let number = |i: usize, column: &str| -> Result<f64, ModelError> {
+            let cell = rec.get(i).unwrap_or("");
+            cell.parse::<f64>().map_err(|_| {
+                err(
+                    line,
+                    format!("column '{column}': '{cell}' is not a number (GeV)"),
+                )
+            })
+        };
+        let m_dm_gev = number(i_dm, BOUNDARY_COLUMNS[0])?;
+        let m_med_limit_obs_gev = number(i_obs, BOUNDARY_COLUMNS[1])?;
+        let m_med_limit_exp_gev = match i_exp {
+            Some(i) if !rec.get(i).unwrap_or("").is_empty() => {
+                Some(number(i, BOUNDARY_COLUMNS[2])?)
+            }
+            _ => None,
+        };
+        for (column, v) in [
+            (BOUNDARY_COLUMNS[0], Some(m_dm_gev)),
+            (BOUNDARY_COLUMNS[1], Some(m_med_limit_obs_gev)),
+            (BOUNDARY_COLUMNS[2], m_med_limit_exp_gev),
+        ] {
+            if let Some(v) = v
+                && !(v.is_finite() && v > 0.0)
+            {
+                return Err(err(
+                    line,
+                    format!("column '{column}': must be finite and > 0, got {v} GeV"),
+                ));
+            }
+        }
+        out.push(BoundaryPoint {
+            m_dm_gev,
+            m_med_limit_obs_gev,
+            m_med_limit_exp_gev,
+        });
+    }
+    if out.is_empty() {
+        return Err(err(1, "no boundary points after the header".to_string()));
+    }
+    Ok(out)
+}

@@ -22,7 +22,7 @@ pub mod mediator;
 pub mod nucleon;
 pub mod rescale;
 
-pub use curve::{BoundaryPoint, ColliderCurve, CurvePoint, collider_curve};
+pub use curve::{BoundaryPoint, ColliderCurve, CurvePoint, collider_curve, read_boundary_csv};
 pub use mediator::{
     Channel, Couplings, FermionMasses, Mediator, MediatorKind, WIDE_WIDTH_OVER_MASS,
 };
@@ -86,6 +86,16 @@ pub enum ModelError {
         scale_high: f64,
         /// The signal scale that reaches the limit (μ_up at the reference).
         target: f64,
+    },
+    /// A collider boundary table (CSV) cannot be read.
+    #[error("{source_name}: line {line}: {message}")]
+    BoundaryFile {
+        /// File name (or other source description).
+        source_name: String,
+        /// 1-based line number (1 is the header).
+        line: u64,
+        /// What is wrong.
+        message: String,
     },
     /// A point of a collider exclusion boundary breaks a rule.
     #[error("collider boundary point {index} (m_dm_gev = {m_dm_gev}): {message}")]
