@@ -86,11 +86,32 @@ impl FromStr for MediatorKind {
 /// over the three charged leptons and neutrinos; for spin-0 mediators the
 /// coupling to a fermion f is g · y_f with the Yukawa coupling
 /// y_f = √2 m_f / v (arXiv:1507.00966).
+///
+/// Deserialising (e.g. from a scan plan) validates like [`Couplings::with_leptons`];
+/// `g_l` may be omitted (0).
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+#[serde(try_from = "CouplingsInput")]
 pub struct Couplings {
     g_q: f64,
     g_dm: f64,
     g_l: f64,
+}
+
+/// Unvalidated couplings as written in a file.
+#[derive(serde::Deserialize)]
+#[serde(deny_unknown_fields)]
+struct CouplingsInput {
+    g_q: f64,
+    g_dm: f64,
+    #[serde(default)]
+    g_l: f64,
+}
+
+impl TryFrom<CouplingsInput> for Couplings {
+    type Error = ModelError;
+    fn try_from(c: CouplingsInput) -> Result<Self, ModelError> {
+        Couplings::with_leptons(c.g_q, c.g_dm, c.g_l)
+    }
 }
 
 impl Couplings {
@@ -205,7 +226,7 @@ impl Channel {
 /// An s-channel mediator of mass M coupling Dirac dark matter χ of mass m_χ
 /// to quarks (and optionally leptons). Built only through [`Mediator::new`],
 /// so every instance has valid masses and couplings.
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Mediator {
     kind: MediatorKind,
     m_med_gev: f64,
@@ -367,7 +388,8 @@ impl Mediator {
     }
 
     /// Partial width [GeV] into one channel evaluated at the invariant mass
-    /// `m_gev` instead of M (for an off-shell mediator line shape).
+    /// `m_gev` instead of M (for an off-shell mediator line shape); 0 when
+    /// `m_gev` is not finite and > 0.
     ///
     /// # Formula
     /// The expressions of [`spin1_fermion_width_gev`],
@@ -512,6 +534,18 @@ mod tests {
             "tensor".parse::<MediatorKind>(),
             Err(ModelError::UnknownMediator(_))
         ));
+    }
+
+    #[test]
+    fn couplings_deserialise_with_validation() {
+        let ok: Couplings = serde_json::from_str(r#"{"g_q": 0.25, "g_dm": 1.0}"#).unwrap();
+        assert_eq!(ok, Couplings::benchmark());
+        let bad = serde_json::from_str::<Couplings>(r#"{"g_q": -1.0, "g_dm": 1.0}"#);
+        assert!(
+            bad.unwrap_err()
+                .to_string()
+                .contains("g_q must be finite and >= 0")
+        );
     }
 
     #[test]
