@@ -187,14 +187,9 @@ fn energy_mev(px: i64, py: i64, pz: i64, m_gev: f64) -> i64 {
     (p2 + (m_gev * 1000.0).powi(2)).sqrt().round() as i64
 }
 
-/// One generated event, ready to write.
-struct GeneratedEvent {
-    hepeup: lhef::HEPEUP,
-}
-
 /// Samples one event at the grid point; `None` when the sampled kinematics
 /// is outside the beams' reach (the caller retries).
-fn sample_kinematics(rng: &mut Pcg64Mcg, med: &Mediator, m_gev: f64) -> Option<(P4, P4, P4, f64)> {
+fn sample_kinematics(rng: &mut Pcg64Mcg, med: &Mediator, m_gev: f64) -> Option<(P4, P4, P4)> {
     // Falling jet-pT spectrum (pT + a)^−6 above the cut, harder for heavier m.
     let a = 0.35 * m_gev + 60.0;
     let u: f64 = rng.random();
@@ -243,7 +238,7 @@ fn sample_kinematics(rng: &mut Pcg64Mcg, med: &Mediator, m_gev: f64) -> Option<(
         p_star * cos_t,
     );
     let chi = chi_rest.boost(med_p4.beta());
-    Some((jet, med_p4, chi, pt))
+    Some((jet, med_p4, chi))
 }
 
 /// χ and χ̄ momenta [MeV] near (c, −jet − c) with E_tot + pz_tot even;
@@ -278,11 +273,11 @@ fn generate_event(
     med: &Mediator,
     shape: &LineShape,
     xsec_pb: f64,
-) -> GeneratedEvent {
+) -> lhef::HEPEUP {
     let m_dm = med.m_dm_gev();
     let (m_gev, jet, j, c1, c2) = loop {
         let m = shape.sample(rng.random());
-        let Some((jet, med_p4, chi, _pt)) = sample_kinematics(rng, med, m) else {
+        let Some((jet, med_p4, chi)) = sample_kinematics(rng, med, m) else {
             continue;
         };
         let chibar = med_p4 - chi;
@@ -384,24 +379,22 @@ fn generate_event(
             [g[0], g[1], g[2], g[3], m]
         })
         .collect();
-    GeneratedEvent {
-        hepeup: lhef::HEPEUP {
-            NUP: 6,
-            IDRUP: 1,
-            XWGTUP: xsec_pb,
-            SCALUP: scale,
-            AQEDUP: 0.007_547,
-            AQCDUP: alpha_s,
-            IDUP: vec![ids[0], ids[1], ids[2], ID_MED, ID_DM, -ID_DM],
-            ISTUP: vec![-1, -1, 1, 2, 1, 1],
-            MOTHUP: vec![[0, 0], [0, 0], [1, 2], [1, 2], [4, 4], [4, 4]],
-            ICOLUP: vec![cols[0], cols[1], cols[2], [0, 0], [0, 0], [0, 0]],
-            PUP: pup,
-            VTIMUP: vec![0.0; 6],
-            SPINUP: vec![9.0; 6],
-            info,
-            attr: lhef::XmlAttr::new(),
-        },
+    lhef::HEPEUP {
+        NUP: 6,
+        IDRUP: 1,
+        XWGTUP: xsec_pb,
+        SCALUP: scale,
+        AQEDUP: 0.007_547,
+        AQCDUP: alpha_s,
+        IDUP: vec![ids[0], ids[1], ids[2], ID_MED, ID_DM, -ID_DM],
+        ISTUP: vec![-1, -1, 1, 2, 1, 1],
+        MOTHUP: vec![[0, 0], [0, 0], [1, 2], [1, 2], [4, 4], [4, 4]],
+        ICOLUP: vec![cols[0], cols[1], cols[2], [0, 0], [0, 0], [0, 0]],
+        PUP: pup,
+        VTIMUP: vec![0.0; 6],
+        SPINUP: vec![9.0; 6],
+        info,
+        attr: lhef::XmlAttr::new(),
     }
 }
 
@@ -482,7 +475,7 @@ fn write_point(dir: &Path, index: u64, m_med: f64, m_dm: f64) -> anyhow::Result<
         let mut rng = Pcg64Mcg::seed_from_u64(mix_seed(SEED, index));
         for _ in 0..N_EVENTS {
             let ev = generate_event(&mut rng, &med, &shape, xsec_pb);
-            w.hepeup(&ev.hepeup)?;
+            w.hepeup(&ev)?;
         }
         w.finish()?;
         let text = w.into_inner();
