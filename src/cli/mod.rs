@@ -4,6 +4,7 @@
 use clap::{Parser, Subcommand};
 
 mod inspect;
+mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
 /// compare the exclusion with direct detection. Results are estimates, not an
@@ -19,11 +20,14 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
+    Translate(translate::TranslateArgs),
 }
 
 /// Runs the parsed command.
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Translate(args) => translate::run(args),
     }
 }
