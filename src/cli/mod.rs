@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 
 mod inspect;
 mod recast;
+mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
 /// compare the exclusion with direct detection. Results are estimates, not an
@@ -22,6 +23,8 @@ enum Command {
     Inspect(inspect::InspectArgs),
     /// Yields, cut-flows, CLs and limits of one search for one event sample.
     Recast(Box<recast::RecastArgs>),
+    /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
+    Translate(translate::TranslateArgs),
 }
 
 /// Runs the parsed command.
@@ -29,5 +32,6 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
         Command::Recast(args) => recast::run(*args),
+        Command::Translate(args) => translate::run(args),
     }
 }

@@ -9,7 +9,7 @@ use recoil::detector::{Detector, DetectorProfile, Variation};
 use recoil::events::{EventSource, FileCombination, InvisibleSet, ReadOptions};
 use recoil::search::{
     ModelIndependentLimit, Search, SearchLimits, UncertaintyScaling, model_independent_limits,
-    run_sample_with, search_limits,
+    run_sample, search_limits,
 };
 use recoil::stats::{BackgroundConstraint, LimitOptions, Method};
 
@@ -105,35 +105,6 @@ struct Config {
     combination: FileCombination,
 }
 
-fn parse_variation(spec: &str) -> anyhow::Result<Variation> {
-    let mut v = Variation::default();
-    for part in spec.split(',').map(str::trim).filter(|p| !p.is_empty()) {
-        let (key, value) = part.split_once('=').with_context(|| {
-            format!(
-                "--detector-variation: \"{part}\" must be key=value (keys: resolution, efficiency)"
-            )
-        })?;
-        let x: f64 = value.trim().parse().with_context(|| {
-            format!("--detector-variation: \"{value}\" in \"{part}\" is not a number")
-        })?;
-        if !x.is_finite() {
-            bail!("--detector-variation: {key} must be finite, got {x}");
-        }
-        match key.trim() {
-            "resolution" if x > -1.0 => v.resolution_shift = x,
-            "resolution" => bail!("--detector-variation: resolution shift must be > −1, got {x}"),
-            "efficiency" if (-1.0..=1.0).contains(&x) => v.efficiency_shift = x,
-            "efficiency" => {
-                bail!("--detector-variation: efficiency shift must be in [−1, 1], got {x}")
-            }
-            other => bail!(
-                "--detector-variation: unknown key \"{other}\" (keys: resolution, efficiency)"
-            ),
-        }
-    }
-    Ok(v)
-}
-
 impl Config {
     fn build(args: &RecastArgs) -> anyhow::Result<Config> {
         let mut search = Search::from_toml_file(&args.search)
@@ -171,7 +142,7 @@ impl Config {
             other => bail!("--constraint must be gaussian or lognormal, got \"{other}\""),
         };
         let variation = match &args.detector_variation {
-            Some(spec) => parse_variation(spec)?,
+            Some(spec) => spec.parse::<Variation>().context("--detector-variation")?,
             None => Variation::default(),
         };
         let profile_path = match (&args.detector, search.detector_profile()) {
@@ -250,15 +221,7 @@ pub fn run(args: RecastArgs) -> anyhow::Result<()> {
             bar.set_position(bytes);
         }
     };
-    let result = pool.install(|| {
-        run_sample_with(
-            &cfg.search,
-            source,
-            &detector,
-            &cfg.invisible,
-            Some(&progress),
-        )
-    });
+    let result = pool.install(|| run_sample(&cfg.search, source, &detector, Some(&progress)));
     if let Some(bar) = &bar {
         bar.finish_and_clear();
     }

@@ -34,5 +34,5 @@ pub use limits::{
 pub use observables::{Acceptance, ObjectDefinitions, Observable};
 pub use yields::{
     Bin, Distribution, EventOrigin, RegionYield, SampleYields, TruthInfo, YieldAccumulator,
-    run_sample, run_sample_with,
+    run_sample,
 };

@@ -558,36 +558,20 @@ impl SampleYields {
     }
 }
 
-/// Streams a sample through the detector and the search with the default
-/// invisible set for the truth distributions. See [`run_sample_with`].
+/// Streams a sample once (on all cores of the current rayon pool): each
+/// chunk of events is reconstructed into one reused [`Reco`] buffer and
+/// counted in its own accumulator; the chunk accumulators are merged in
+/// file and chunk order, so the result is bit-identical on any number of
+/// threads. The detector's invisible set defines the truth missing momentum
+/// of the truth distributions. Expected events are at the search's
+/// luminosity; `progress` receives the bytes read so far.
 pub fn run_sample(
     search: &Search,
     source: EventSource,
     detector: &Detector,
     progress: Option<&(dyn Fn(u64) + Sync)>,
 ) -> Result<SampleYields, SearchError> {
-    run_sample_with(
-        search,
-        source,
-        detector,
-        &InvisibleSet::standard(),
-        progress,
-    )
-}
-
-/// Streams a sample once (on all cores of the current rayon pool): each
-/// chunk of events is reconstructed into one reused [`Reco`] buffer and
-/// counted in its own accumulator; the chunk accumulators are merged in
-/// file and chunk order, so the result is bit-identical on any number of
-/// threads. `invisible` defines the truth missing momentum of the truth
-/// distributions. Expected events are at the search's luminosity.
-pub fn run_sample_with(
-    search: &Search,
-    source: EventSource,
-    detector: &Detector,
-    invisible: &InvisibleSet,
-    progress: Option<&(dyn Fn(u64) + Sync)>,
-) -> Result<SampleYields, SearchError> {
+    let invisible = detector.invisible();
     let n_var = source.info().weight_names.len();
     let mut total = YieldAccumulator::new(search, n_var);
     let mut first_error: Option<SearchError> = None;
