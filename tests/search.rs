@@ -615,3 +615,90 @@ fn yields_survive_a_json_round_trip() {
     let back: recoil::search::SampleYields = serde_json::from_str(&text).unwrap();
     assert_eq!(back, y);
 }
+
+/// A parton-level event: g g → g + χ χ̄ with the gluon at φ = 0 carrying
+/// `pt` and the χ pair balancing it (plus an optional final-state muon).
+fn parton_event(pt: f64, with_muon: bool, weight: f64) -> recoil::events::Event {
+    use recoil::events::{Event, Particle};
+    let p = |id: i32, status: i32, p4: P4| Particle {
+        id,
+        status,
+        mothers: [0, 0],
+        colour: [0, 0],
+        p4,
+        mass_gev: p4.m(),
+        lifetime_mm: 0.0,
+        spin: 9.0,
+    };
+    let mut particles = vec![
+        p(21, -1, P4::new(1000.0, 0.0, 0.0, 1000.0)),
+        p(21, -1, P4::new(1000.0, 0.0, 0.0, -1000.0)),
+        p(21, 1, P4::from_pt_eta_phi_m(pt, 0.2, 0.0, 0.0)),
+        p(
+            52,
+            1,
+            P4::from_pt_eta_phi_m(pt / 2.0, 0.5, std::f64::consts::PI, 10.0),
+        ),
+        p(
+            -52,
+            1,
+            P4::from_pt_eta_phi_m(pt / 2.0, -0.5, std::f64::consts::PI, 10.0),
+        ),
+    ];
+    if with_muon {
+        particles.push(p(13, 1, P4::from_pt_eta_phi_m(40.0, 0.1, 1.5, 0.105)));
+    }
+    Event {
+        process_id: 1,
+        weight,
+        particles,
+        ..Event::default()
+    }
+}
+
+#[test]
+fn truth_detector_feeds_the_regions() {
+    use recoil::detector::{Detector, DetectorProfile};
+    use recoil::events::InvisibleSet;
+    let search = Search::from_toml_file(std::path::Path::new(DEMO)).unwrap();
+    let detector = Detector::new(DetectorProfile::truth(), InvisibleSet::standard(), 1);
+    let invisible = InvisibleSet::standard();
+    let mut acc = YieldAccumulator::new(&search, 0);
+    let mut reco = Reco::default();
+    // (jet pT = p_T^miss [GeV], muon, weight)
+    let sample = [
+        (260.0, false, 1.0),
+        (1300.0, false, 2.0),
+        (1300.0, true, 4.0),
+        (180.0, false, 8.0),
+    ];
+    for (i, (pt, muon, w)) in sample.iter().enumerate() {
+        let ev = parton_event(*pt, *muon, *w);
+        detector.reconstruct(&ev, 0, i as u64, &mut reco);
+        let truth = TruthInfo::from_event(&ev, &invisible);
+        acc.add(&reco, &truth, origin(0, i as u64)).unwrap();
+    }
+    let y = acc.finish_with(|_, _| 1.0, 4, 1.0).unwrap();
+    let raw = |name: &str| {
+        y.regions
+            .iter()
+            .find(|r| r.name == name)
+            .map(|r| r.raw_events)
+            .unwrap()
+    };
+    // Hand-classified: 260 → E250_300 only; 1300 without muon → E1200_inf
+    // and every inclusive region; the muon event and the 180 GeV event fail
+    // the preselection (lepton veto; p_T^miss > 200).
+    assert_eq!(raw("E250_300"), 1);
+    assert_eq!(raw("E1200_inf"), 1);
+    assert_eq!(raw("I300"), 1);
+    assert_eq!(raw("I1200"), 1);
+    assert_eq!(raw("E200_250"), 0);
+    assert_eq!(y.cutflows[0].steps.last().unwrap().raw_events, 2);
+    // Expected events: weight × 1 pb × 1 fb⁻¹ = 1000 w.
+    assert_eq!(y.regions[1].events, 1000.0);
+    // Truth p_T^miss of the 260 GeV event falls in the [250, 300) bin.
+    let truth_met = &y.distributions[0];
+    assert_eq!(truth_met.bins[5].low_gev, 250.0);
+    assert!(truth_met.bins[5].events > 0.0);
+}
