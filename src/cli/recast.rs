@@ -301,7 +301,8 @@ fn opt(x: Option<f64>) -> String {
     x.map(num).unwrap_or_default()
 }
 
-/// A table with a header row, columns right-aligned except the first.
+/// A table with a header row; the first column and `cut` are left-aligned,
+/// the others (numbers) right-aligned.
 fn table(out: &mut impl Write, header: &[&str], rows: &[Vec<String>]) -> std::io::Result<()> {
     let mut widths: Vec<usize> = header.iter().map(|h| h.chars().count()).collect();
     for row in rows {
@@ -316,7 +317,7 @@ fn table(out: &mut impl Write, header: &[&str], rows: &[Vec<String>]) -> std::io
             .enumerate()
             .map(|(i, (c, w))| {
                 let pad = " ".repeat(w - c.chars().count());
-                if i == 0 {
+                if i == 0 || header[i] == "cut" {
                     format!("{c}{pad}")
                 } else {
                     format!("{pad}{c}")
@@ -330,6 +331,20 @@ fn table(out: &mut impl Write, header: &[&str], rows: &[Vec<String>]) -> std::io
         writeln!(out, "{}", line(row.iter().map(String::as_str).collect()))?;
     }
     Ok(())
+}
+
+/// Step, cut, raw count, s ± MC stat, cumulative and step efficiency of
+/// step `i` of a cut-flow, for the terminal.
+fn cutflow_row(flow: &recoil::search::Cutflow, i: usize) -> Vec<String> {
+    let st = &flow.steps[i];
+    vec![
+        i.to_string(),
+        st.cut.clone(),
+        st.raw_events.to_string(),
+        format!("{} ± {}", sig(st.events), sig(st.mc_stat)),
+        sig(flow.efficiency_cumulative(i)),
+        sig(flow.efficiency_step(i)),
+    ]
 }
 
 fn method_text(opts: &LimitOptions) -> String {
@@ -384,33 +399,33 @@ fn print_report(
 
     writeln!(out, "cut-flow (preselection)")?;
     let pre = &y.cutflows[0];
-    let rows: Vec<Vec<String>> = pre
-        .steps
+    let rows: Vec<Vec<String>> = (0..pre.steps.len()).map(|i| cutflow_row(pre, i)).collect();
+    let header = [
+        "step",
+        "cut",
+        "MC events",
+        "s ± MC stat [events]",
+        "ε cumulative",
+        "ε step",
+    ];
+    table(out, &header, &rows)?;
+    writeln!(
+        out,
+        "\ncut-flow (regions; steps 0 and 1 are all events and the preselection above)"
+    )?;
+    let rows: Vec<Vec<String>> = y.cutflows[1..]
         .iter()
-        .enumerate()
-        .map(|(i, st)| {
-            vec![
-                i.to_string(),
-                st.cut.clone(),
-                st.raw_events.to_string(),
-                format!("{} ± {}", sig(st.events), sig(st.mc_stat)),
-                sig(pre.efficiency_cumulative(i)),
-                sig(pre.efficiency_step(i)),
-            ]
+        .flat_map(|flow| {
+            (2..flow.steps.len()).map(move |i| {
+                let mut row = vec![flow.name.clone()];
+                row.extend(cutflow_row(flow, i));
+                row
+            })
         })
         .collect();
-    table(
-        out,
-        &[
-            "step",
-            "cut",
-            "MC events",
-            "s [events]",
-            "ε cumulative",
-            "ε step",
-        ],
-        &rows,
-    )?;
+    let mut region_header = vec!["region"];
+    region_header.extend(header);
+    table(out, &region_header, &rows)?;
     writeln!(out)?;
 
     let has_var = y.n_weight_variations > 0;
@@ -498,14 +513,23 @@ fn print_report(
             sig(c.cls_mu1)
         )?;
     }
-    let warnings: Vec<&String> = limits
+    // Each distinct warning once, with the regions it concerns.
+    let mut warnings: Vec<(&str, Vec<&str>)> = Vec::new();
+    let named = limits
         .regions
         .iter()
-        .flat_map(|r| r.limit.warnings.iter())
-        .chain(limits.combined.iter().flat_map(|c| c.warnings.iter()))
-        .collect();
-    for w in warnings {
-        writeln!(out, "warning: {w}")?;
+        .map(|r| (r.region.as_str(), &r.limit))
+        .chain(limits.combined.iter().map(|c| ("combined", c)));
+    for (region, limit) in named {
+        for w in &limit.warnings {
+            match warnings.iter_mut().find(|(text, _)| text == w) {
+                Some((_, regions)) => regions.push(region),
+                None => warnings.push((w, vec![region])),
+            }
+        }
+    }
+    for (text, regions) in warnings {
+        writeln!(out, "warning ({}): {text}", regions.join(", "))?;
     }
     for (r, mi) in s.regions().iter().zip(independent) {
         if let Some(p) = r.published() {
@@ -784,4 +808,179 @@ fn write_atomic(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
         let _ = std::fs::remove_file(&tmp);
         anyhow::Error::new(e).context(format!("writing {}", path.display()))
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use recoil::detector::Reco;
+    use recoil::search::{EventOrigin, SampleYields, TruthInfo, YieldAccumulator};
+    use recoil::stats::Limit;
+
+    const DEMO: &str = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/recasts/searches/demo-jet-met.toml"
+    );
+
+    /// Yields and placeholder limits: these tests check the layout of the
+    /// output files (formats.md), not numbers.
+    fn fixture() -> (
+        Config,
+        SampleYields,
+        SearchLimits,
+        Vec<ModelIndependentLimit>,
+    ) {
+        let search = Search::from_toml_file(Path::new(DEMO)).unwrap();
+        let mut acc = YieldAccumulator::new(&search, 0);
+        for (i, met) in [250.0, 450.0, 1500.0].into_iter().enumerate() {
+            let reco = Reco {
+                jets: vec![recoil::detector::Jet {
+                    p4: recoil::kinematics::P4::from_pt_eta_phi_m(met, 0.0, 0.0, 0.0),
+                    b_tagged: false,
+                }],
+                met_xy_gev: [-met, 0.0],
+                met_gev: met,
+                weight: 1.0,
+                ..Reco::default()
+            };
+            let truth = TruthInfo {
+                met_gev: met,
+                leading_parton_pt_gev: Some(met),
+            };
+            let origin = EventOrigin {
+                file_index: 0,
+                event_index: i as u64,
+                process_id: 1,
+            };
+            acc.add(&reco, &truth, origin).unwrap();
+        }
+        let y = acc.finish_with(|_, _| 1e-3, 3, 300.0).unwrap();
+        let opts = LimitOptions {
+            cl: 0.95,
+            method: Method::Asymptotic,
+            constraint: BackgroundConstraint::Gaussian,
+        };
+        let limit = Limit {
+            cl: 0.95,
+            method: Method::Asymptotic,
+            cls_mu1: 0.5,
+            cls_mu1_mc_unc: None,
+            mu_up_observed: f64::INFINITY,
+            mu_up_expected: [1.0, 2.0, 3.0, 4.0, 5.0],
+            warnings: vec!["placeholder".into()],
+        };
+        let counts = search.region_counts(&y).unwrap();
+        let limits = SearchLimits {
+            options: opts,
+            regions: search
+                .regions()
+                .iter()
+                .zip(counts)
+                .map(|(r, c)| recoil::search::RegionLimit {
+                    region: r.name().to_string(),
+                    counts: c,
+                    limit: limit.clone(),
+                })
+                .collect(),
+            best_region: Some(3),
+            combined: Some(limit),
+        };
+        let mi = vec![
+            ModelIndependentLimit {
+                s95_obs: 10.0,
+                s95_exp: 12.0,
+                sigma_vis_obs_fb: 10.0 / 300.0,
+                sigma_vis_exp_fb: 12.0 / 300.0,
+            };
+            search.regions().len()
+        ];
+        let cfg = Config {
+            search,
+            search_path: PathBuf::from(DEMO),
+            profile: DetectorProfile::truth(),
+            profile_path: PathBuf::from("truth.toml"),
+            variation: Variation::default(),
+            limit: opts,
+            invisible: InvisibleSet::standard(),
+            combination: FileCombination::IndependentRuns,
+        };
+        (cfg, y, limits, mi)
+    }
+
+    fn parse(bytes: &[u8]) -> (Vec<String>, Vec<Vec<String>>) {
+        let mut r = csv::Reader::from_reader(bytes);
+        let header = r.headers().unwrap().iter().map(String::from).collect();
+        let rows = r
+            .records()
+            .map(|rec| rec.unwrap().iter().map(String::from).collect())
+            .collect();
+        (header, rows)
+    }
+
+    #[test]
+    fn output_files_follow_the_shared_formats() {
+        let (cfg, y, limits, mi) = fixture();
+        // Column lists copied from the shared formats contract.
+        let (h, rows) = parse(&yields_csv(&cfg, &y, &limits, &mi).unwrap());
+        assert_eq!(
+            h.join(","),
+            "region,inclusive,met_low_gev,met_high_gev,signal_events,signal_mc_stat,\
+             signal_var_low,signal_var_high,efficiency,background,background_unc,observed,\
+             cls_mu1,mu_up_obs,mu_up_exp,mu_up_exp_m1,mu_up_exp_p1,s95_obs,s95_exp,\
+             sigma_vis_up_obs_fb,sigma_vis_up_exp_fb"
+        );
+        assert_eq!(rows.len(), 16);
+        // E200_250: exclusive, edges 200 and 250; E1200_inf open above;
+        // one event of weight 1 × 1e-3 pb × 300 fb⁻¹ = 300 events.
+        assert_eq!(&rows[0][..4], ["E200_250", "false", "200", "250"]);
+        assert_eq!(&rows[10][..4], ["E1200_inf", "false", "1200", ""]);
+        assert_eq!(rows[11][1], "true");
+        assert_eq!(rows[10][4], "300");
+        assert_eq!(rows[0][6], "");
+        assert_eq!(rows[0][13], "inf");
+
+        let (h, rows) = parse(&cutflow_csv(&y).unwrap());
+        assert_eq!(
+            h.join(","),
+            "region,step,cut,raw_events,weighted_events,efficiency_cumulative,efficiency_step"
+        );
+        assert_eq!(rows[0][..3], ["preselection", "0", "all events"]);
+        assert_eq!(rows[1][2], "met > 200");
+        // 10 preselection rows + 16 regions × 3 steps.
+        assert_eq!(rows.len(), 10 + 16 * 3);
+
+        let (h, rows) = parse(&distributions_csv(&y).unwrap());
+        assert_eq!(
+            h.join(","),
+            "observable,level,bin_low_gev,bin_high_gev,events,mc_stat"
+        );
+        assert_eq!(rows.len(), 4 * 41);
+        assert_eq!(rows[40][3], "inf");
+        assert_eq!(rows[0][..2], ["met", "truth"]);
+    }
+
+    #[test]
+    fn report_states_method_and_best_region() {
+        let (cfg, y, limits, mi) = fixture();
+        let mut out = Vec::new();
+        print_report(&mut out, &cfg, &y, &limits, &mi).unwrap();
+        let text = String::from_utf8(out).unwrap();
+        assert!(text.contains("limits at 95 % CL: asymptotic CLs"), "{text}");
+        assert!(text.contains("most sensitive region"), "{text}");
+        assert!(text.contains("E400_500"), "{text}");
+        assert!(text.contains("σ_vis,up obs/exp [fb]"), "{text}");
+        // A warning shared by every region is printed once.
+        assert_eq!(text.matches("placeholder").count(), 1, "{text}");
+        assert!(text.contains("not an official result"), "{text}");
+    }
+
+    #[test]
+    fn atomic_write_leaves_no_temporary_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let target = dir.path().join("x.csv");
+        write_atomic(&target, b"a,b\n").unwrap();
+        write_atomic(&target, b"c,d\n").unwrap();
+        assert_eq!(std::fs::read(&target).unwrap(), b"c,d\n");
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
+    }
 }
