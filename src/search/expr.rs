@@ -167,9 +167,16 @@ impl Cut {
             terms.push(p.comparison()?);
         }
         if let Some((tok, at)) = p.tokens.get(p.pos) {
+            let hint = match tok {
+                Tok::Ident(u) if ["GeV", "TeV", "MeV", "rad", "gev"].contains(&u.as_str()) => {
+                    "; units are implied (GeV, rad): write the number alone"
+                }
+                Tok::Ident(o) if o == "or" => "; only \"and\" combines comparisons",
+                _ => "",
+            };
             return Err(ExprError {
                 position: *at,
-                message: format!("unexpected {}", tok.describe()),
+                message: format!("unexpected {}{hint}", tok.describe()),
             });
         }
         Ok(Cut {
@@ -571,6 +578,7 @@ mod tests {
             ("met = 250", 4),
             ("met > 250 && n_jets < 4", 10),
             ("met > 250 or ht > 3", 10),
+            ("met > 250 GeV", 10),
             ("jet1. > 3", 6),
             ("min_dphi_jets_met(x) > 0.4", 18),
             ("1 < 2", 0),
@@ -581,5 +589,7 @@ mod tests {
             let err = parse(text).unwrap_err();
             assert_eq!(err.position, position, "{text}: {}", err.render(text));
         }
+        let err = parse("met > 250 GeV").unwrap_err();
+        assert!(err.message.contains("units are implied"), "{}", err.message);
     }
 }
