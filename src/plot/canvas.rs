@@ -88,12 +88,24 @@ impl Axis {
     /// A log axis covering the positive finite `values`, widened to whole
     /// decades; `None` when there is no positive finite value.
     pub fn log(values: impl IntoIterator<Item = f64>, title: &str) -> Option<Axis> {
+        Axis::log_with_room(values, title, 0.0)
+    }
+
+    /// As [`Axis::log`], but a value on a decade gets a decade of room so it
+    /// is not drawn on the frame (for counts and cross-sections).
+    pub fn log_padded(values: impl IntoIterator<Item = f64>, title: &str) -> Option<Axis> {
+        Axis::log_with_room(values, title, 0.02)
+    }
+
+    fn log_with_room(
+        values: impl IntoIterator<Item = f64>,
+        title: &str,
+        room: f64,
+    ) -> Option<Axis> {
         let (lo, hi) = finite_range(values.into_iter().filter(|v| *v > 0.0));
         let (lo, hi) = (lo?, hi?);
-        // A value on a decade gets a decade of room, so it is not drawn on
-        // the frame.
-        let a = (lo.log10() - 0.02).floor();
-        let mut b = (hi.log10() + 0.02).ceil();
+        let a = (lo.log10() - room).floor();
+        let mut b = (hi.log10() + room).ceil();
         if b <= a {
             b = a + 1.0;
         }
@@ -822,7 +834,7 @@ mod tests {
         let m = Axis::log([5.0, 800.0], "m").unwrap();
         assert_eq!(m.tick_label(2.0), "100");
         // A value on a decade is not put on the frame.
-        let e = Axis::log([0.01, 1.0], "ε").unwrap();
+        let e = Axis::log_padded([0.01, 1.0], "ε").unwrap();
         assert_eq!((e.min, e.max), (1e-3, 10.0));
         assert!(Axis::log([0.0, -1.0], "x").is_none());
     }

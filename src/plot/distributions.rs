@@ -247,7 +247,8 @@ pub fn distributions_figure(
 /// when every value is zero.
 fn events_axis(values: impl IntoIterator<Item = f64>, title: &str) -> Axis {
     let v: Vec<f64> = values.into_iter().collect();
-    Axis::log(v.iter().copied(), title).unwrap_or_else(|| Axis::linear([0.0, 1.0], title, true))
+    Axis::log_padded(v.iter().copied(), title)
+        .unwrap_or_else(|| Axis::linear([0.0, 1.0], title, true))
 }
 
 fn draw_histogram(root: &Root, frame: &Frame, h: &Histogram) -> DResult<()> {

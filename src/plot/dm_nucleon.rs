@@ -224,7 +224,7 @@ fn build(curves: &[Curve], labels: &Labels) -> Result<String, PlotError> {
     let ss = curves.iter().flat_map(|c| c.points.iter().map(|p| p.1));
     let x_axis = Axis::log(ms, "Dark-matter mass m_χ [GeV]")
         .unwrap_or_else(|| Axis::log_decades(0, 3, "Dark-matter mass m_χ [GeV]"));
-    let y_axis = Axis::log(ss, interaction.axis_title())
+    let y_axis = Axis::log_padded(ss, interaction.axis_title())
         .unwrap_or_else(|| Axis::log_decades(-46, -36, interaction.axis_title()));
 
     let legend: Vec<LegendEntry> = curves
@@ -238,7 +238,7 @@ fn build(curves: &[Curve], labels: &Labels) -> Result<String, PlotError> {
     let mut lines = Vec::new();
     if has_collider {
         lines.push(format!(
-            "Collider curves ({} (CLs)) hold only for the stated model and couplings: {} mediator, {}.",
+            "Collider curves ({}, CLs) hold only for the stated model and couplings: {} mediator, {}.",
             cl_text(labels.collider_cl),
             labels.mediator.as_deref().unwrap_or_default(),
             labels.couplings.as_deref().unwrap_or_default()
