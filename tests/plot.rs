@@ -103,6 +103,20 @@ impl Svg {
     }
 }
 
+fn assert_ok(out: &std::process::Output) {
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
+fn assert_texts(svg: &Svg, texts: &[&str]) {
+    for t in texts {
+        assert!(svg.has_text(t), "missing text `{t}` in {:?}", svg.texts);
+    }
+}
+
 fn hex(c: style::Rgb) -> String {
     c.hex()
 }
@@ -154,28 +168,25 @@ fn exclusion_cli_renders_series_labels_and_units() {
         .arg(&out)
         .output()
         .unwrap();
-    assert!(
-        st.status.success(),
-        "{}",
-        String::from_utf8_lossy(&st.stderr)
-    );
+    assert_ok(&st);
     let svg = parse(&std::fs::read_to_string(&out).unwrap());
     // The labels the issue asks for.
-    for t in [
-        "95 % CL (CLs)",
-        "Mediator: vector",
-        // Couplings read from results.csv (all points share g_q = 0.25, g_dm = 1).
-        "Couplings: g_q = 0.25, g_χ = 1",
-        "√s = 13 TeV, 139 fb⁻¹",
-        "Mediator mass M [GeV]",
-        "Dark-matter mass m_χ [GeV]",
-        "M = 2 m_χ",
-        "Observed limit",
-        "Expected limit",
-        "Expected ± 1σ",
-    ] {
-        assert!(svg.has_text(t), "missing text `{t}` in {:?}", svg.texts);
-    }
+    assert_texts(
+        &svg,
+        &[
+            "95 % CL (CLs)",
+            "Mediator: vector",
+            // Couplings read from results.csv (all points share g_q = 0.25, g_dm = 1).
+            "Couplings: g_q = 0.25, g_χ = 1",
+            "√s = 13 TeV, 139 fb⁻¹",
+            "Mediator mass M [GeV]",
+            "Dark-matter mass m_χ [GeV]",
+            "M = 2 m_χ",
+            "Observed limit",
+            "Expected limit",
+            "Expected ± 1σ",
+        ],
+    );
     // Text is SVG text in a generic family: no font file is involved.
     assert_eq!(
         svg.font_families,
@@ -432,18 +443,19 @@ fn dm_nucleon_renders_curves_with_cl_and_model_note() {
     let curves = dm_curves();
     assert_eq!(curves.len(), 4);
     let svg = parse(&plot::render_dm_nucleon(&curves, &full_labels()).unwrap());
-    for t in [
-        "observed (95 % CL, collider)",
-        "expected (95 % CL, collider)",
-        "xenon-1t-year (90 % CL, direct)",
-        "external (90 % CL, imported)",
-        "σ_SI (DM–nucleon) [cm²]",
-        "Dark-matter mass m_χ [GeV]",
-        "hold only for the stated model and couplings",
-        "10⁻⁴⁰",
-    ] {
-        assert!(svg.has_text(t), "missing `{t}` in {:?}", svg.texts);
-    }
+    assert_texts(
+        &svg,
+        &[
+            "observed (95 % CL, collider)",
+            "expected (95 % CL, collider)",
+            "xenon-1t-year (90 % CL, direct)",
+            "external (90 % CL, imported)",
+            "σ_SI (DM–nucleon) [cm²]",
+            "Dark-matter mass m_χ [GeV]",
+            "hold only for the stated model and couplings",
+            "10⁻⁴⁰",
+        ],
+    );
     // One colour per curve, in order.
     for i in 0..4 {
         assert!(
@@ -523,11 +535,7 @@ fn dm_nucleon_cli_picks_interaction_and_imports() {
         .arg(format!("ext={}", fixture("direct_curve.csv").display()))
         .output()
         .unwrap();
-    assert!(
-        st.status.success(),
-        "{}",
-        String::from_utf8_lossy(&st.stderr)
-    );
+    assert_ok(&st);
     let svg = parse(&std::fs::read_to_string(&out).unwrap());
     assert!(svg.has_text("σ_SD (DM–proton) [cm²]"));
     assert!(svg.has_text("observed-sd (95 % CL, collider)"));
@@ -596,24 +604,21 @@ fn distributions_cli_draws_truth_reco_and_region_edges() {
         .arg(&out)
         .output()
         .unwrap();
-    assert!(
-        st.status.success(),
-        "{}",
-        String::from_utf8_lossy(&st.stderr)
-    );
+    assert_ok(&st);
     let svg = parse(&std::fs::read_to_string(&out).unwrap());
-    for t in [
-        "Missing transverse momentum p_T^miss [GeV]",
-        "Leading-jet p_T [GeV]",
-        "Expected signal events per bin",
-        "Signal, reconstructed level (± MC stat.)",
-        "Signal, truth level (± MC stat.)",
-        "Signal-region p_T^miss edges",
-        "Background estimate per region (± unc.)",
-        "Region 0: SR1 [250, 300) GeV",
-    ] {
-        assert!(svg.has_text(t), "missing `{t}` in {:?}", svg.texts);
-    }
+    assert_texts(
+        &svg,
+        &[
+            "Missing transverse momentum p_T^miss [GeV]",
+            "Leading-jet p_T [GeV]",
+            "Expected signal events per bin",
+            "Signal, reconstructed level (± MC stat.)",
+            "Signal, truth level (± MC stat.)",
+            "Signal-region p_T^miss edges",
+            "Background estimate per region (± unc.)",
+            "Region 0: SR1 [250, 300) GeV",
+        ],
+    );
     // Region edges 250, 300, 500 GeV (the fixture's distinct met bounds):
     // vertical guide lines whose x positions keep the ratio
     // (300 − 250)/(500 − 250) = 0.2 on the linear p_T^miss axis.
@@ -696,25 +701,22 @@ fn cutflow_cli_draws_regions_after_preselection() {
         .arg(&out)
         .output()
         .unwrap();
-    assert!(
-        st.status.success(),
-        "{}",
-        String::from_utf8_lossy(&st.stderr)
-    );
+    assert_ok(&st);
     let svg = parse(&std::fs::read_to_string(&out).unwrap());
-    for t in [
-        "Cumulative efficiency",
-        "Cut-flow step",
-        "preselection",
-        "SR1",
-        "SR3",
-        "met > 250",
-        "Zero efficiencies are not drawn",
-        "0.1",
-        "0.01",
-    ] {
-        assert!(svg.has_text(t), "missing `{t}` in {:?}", svg.texts);
-    }
+    assert_texts(
+        &svg,
+        &[
+            "Cumulative efficiency",
+            "Cut-flow step",
+            "preselection",
+            "SR1",
+            "SR3",
+            "met > 250",
+            "Zero efficiencies are not drawn",
+            "0.1",
+            "0.01",
+        ],
+    );
     // Each region's line starts at the last preselection point: the
     // preselection's step 3 (efficiency 0.2) — the SR1 line's first point
     // equals the preselection line's last point.
