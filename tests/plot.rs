@@ -936,3 +936,97 @@ fn palette_stays_apart_for_colour_blind_readers_and_in_greyscale() {
         assert!(w[1] - w[0] >= 8.0, "L* {ls:?}");
     }
 }
+
+#[test]
+fn extreme_magnitudes_do_not_hang_or_panic() {
+    // Values at the ends of f64's range must give a figure or an error.
+    for (a, b) in [(0.0, 1e308), (1e-300, 2e-300), (5.0, 5.0)] {
+        let d = ExclusionData {
+            points: vec![
+                ScanPoint {
+                    m_med_gev: a,
+                    m_dm_gev: a,
+                    excluded: true,
+                },
+                ScanPoint {
+                    m_med_gev: b,
+                    m_dm_gev: b,
+                    excluded: false,
+                },
+            ],
+            contours: vec![],
+        };
+        let _ = plot::render_exclusion(&d, &full_labels());
+    }
+    let c = vec![Curve {
+        label: "wide".into(),
+        source: CurveSource::Imported,
+        cl: 0.9,
+        interaction: Interaction::SpinIndependent,
+        points: vec![(1e-300, 1e-300), (1e300, 1e300)],
+    }];
+    let _ = plot::render_dm_nucleon(&c, &Labels::default());
+}
+
+// ---------------------------------------------------------------- folders
+
+#[test]
+fn scan_and_recast_folders_get_all_their_figures() {
+    let dir = tempfile::tempdir().unwrap();
+    for (from, to) in [
+        ("results.csv", "results.csv"),
+        ("contours.csv", "contours.csv"),
+        ("dm_nucleon.csv", "dm_nucleon.csv"),
+        ("yields.csv", "yields.csv"),
+        ("cutflow.csv", "cutflow.csv"),
+        ("distributions.csv", "distributions.csv"),
+    ] {
+        std::fs::copy(fixture(from), dir.path().join(to)).unwrap();
+    }
+    let mut labels = full_labels();
+    labels.couplings = None; // taken from results.csv
+    let scan = plot::scan_figures(dir.path(), &labels).unwrap();
+    let recast = plot::recast_figures(dir.path(), &labels).unwrap();
+    let names: Vec<String> = scan
+        .iter()
+        .chain(recast.iter())
+        .map(|f| f.svg.file_name().unwrap().to_string_lossy().into_owned())
+        .collect();
+    assert_eq!(
+        names,
+        [
+            "exclusion.svg",
+            "dm_nucleon.svg",
+            "distributions.svg",
+            "cutflow.svg"
+        ]
+    );
+    for f in scan.iter().chain(recast.iter()) {
+        assert_eq!(f.svg.parent().unwrap(), dir.path().join(plot::FIGURES_DIR));
+        parse(&std::fs::read_to_string(&f.svg).unwrap());
+        assert!(f.csv.exists());
+    }
+    // The scan's own dm_nucleon.csv is left as it was.
+    assert_eq!(
+        std::fs::read(dir.path().join("dm_nucleon.csv")).unwrap(),
+        std::fs::read(fixture("dm_nucleon.csv")).unwrap()
+    );
+    let ex = parse(&std::fs::read_to_string(&scan[0].svg).unwrap());
+    assert!(ex.has_text("Couplings: g_q = 0.25, g_χ = 1"));
+
+    // Several cross-sections: one DM–nucleon figure each.
+    std::fs::copy(
+        fixture("dm_nucleon_mixed.csv"),
+        dir.path().join("dm_nucleon.csv"),
+    )
+    .unwrap();
+    let scan = plot::scan_figures(dir.path(), &full_labels()).unwrap();
+    let names: Vec<String> = scan
+        .iter()
+        .map(|f| f.svg.file_name().unwrap().to_string_lossy().into_owned())
+        .collect();
+    assert_eq!(
+        names,
+        ["exclusion.svg", "dm_nucleon_SI.svg", "dm_nucleon_SD-p.svg"]
+    );
+}

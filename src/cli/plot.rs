@@ -4,10 +4,7 @@
 use std::path::{Path, PathBuf};
 
 use anyhow::{Context, bail};
-use recoil::plot::{
-    self, Curve, CurveSource, DistributionsData, ExclusionData, FigureFiles, Interaction, Labels,
-    data,
-};
+use recoil::plot::{self, Curve, CurveSource, FigureFiles, Interaction, Labels, data};
 
 /// Arguments of `recoil plot`.
 #[derive(Debug, clap::Args)]
@@ -198,25 +195,17 @@ pub fn run(args: PlotArgs) -> anyhow::Result<()> {
 fn exclusion(a: ExclusionArgs) -> anyhow::Result<()> {
     a.labels.check_out()?;
     let mut labels = a.labels.labels(Some(&a.model));
-    let results_path = a.scan_dir.join("results.csv");
-    let contours_path = a.scan_dir.join("contours.csv");
-    let rows = data::read_scan_results(&results_path)
-        .with_context(|| format!("reading the scan results {}", results_path.display()))?;
-    let contours = data::read_contours(&contours_path)
-        .with_context(|| format!("reading the contours {}", contours_path.display()))?;
+    let (d, couplings) = data::read_scan_exclusion(&a.scan_dir)
+        .with_context(|| format!("reading the scan folder {}", a.scan_dir.display()))?;
     if labels.couplings.is_none() {
-        labels.couplings = data::uniform_couplings(&rows);
+        labels.couplings = couplings;
         if labels.couplings.is_none() {
             bail!(
                 "{}: the points have different couplings; state them with --couplings",
-                results_path.display()
+                a.scan_dir.join("results.csv").display()
             );
         }
     }
-    let d = ExclusionData {
-        points: rows.iter().map(|r| r.point_masses).collect(),
-        contours,
-    };
     let files = plot::exclusion_figure(&d, &labels, &a.labels.out)
         .with_context(|| format!("writing {}", a.labels.out.display()))?;
     report(&files);
@@ -294,17 +283,8 @@ fn dm_nucleon(a: DmNucleonArgs) -> anyhow::Result<()> {
 fn distributions(a: DistributionsArgs) -> anyhow::Result<()> {
     a.labels.check_out()?;
     let labels = a.labels.labels(None);
-    let dpath = a.recast_dir.join("distributions.csv");
-    let ypath = a.recast_dir.join("yields.csv");
-    let histograms = data::read_distributions(&dpath)
-        .with_context(|| format!("reading the distributions {}", dpath.display()))?;
-    let regions = data::read_yields(&ypath)
-        .with_context(|| format!("reading the yields {}", ypath.display()))?;
-    let d = DistributionsData {
-        histograms,
-        region_edges_gev: DistributionsData::edges_from_regions(&regions),
-        regions: if a.no_regions { Vec::new() } else { regions },
-    };
+    let d = data::read_recast_distributions(&a.recast_dir, !a.no_regions)
+        .with_context(|| format!("reading the recast folder {}", a.recast_dir.display()))?;
     let files = plot::distributions_figure(&d, &labels, &a.labels.out)
         .with_context(|| format!("writing {}", a.labels.out.display()))?;
     report(&files);

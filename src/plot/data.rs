@@ -10,9 +10,9 @@ use std::path::{Path, PathBuf};
 
 use super::PlotError;
 use super::cutflow::{CutflowData, CutflowRow};
-use super::distributions::{Bin, Histogram, Level, Observable, RegionYield};
+use super::distributions::{Bin, DistributionsData, Histogram, Level, Observable, RegionYield};
 use super::dm_nucleon::{Curve, CurveSource, Interaction};
-use super::exclusion::{ContourLevel, ContourLine, ScanPoint};
+use super::exclusion::{ContourLevel, ContourLine, ExclusionData, ScanPoint};
 
 /// A CSV file read whole: header and records with their line numbers.
 struct CsvFile {
@@ -455,4 +455,34 @@ pub fn read_distributions(path: &Path) -> Result<Vec<Histogram>, PlotError> {
         out.push(h);
     }
     Ok(out)
+}
+
+/// The exclusion figure's data from a scan folder (`results.csv`,
+/// `contours.csv`), with the scan's couplings as text when every point
+/// shares them.
+pub fn read_scan_exclusion(dir: &Path) -> Result<(ExclusionData, Option<String>), PlotError> {
+    let rows = read_scan_results(&dir.join("results.csv"))?;
+    let contours = read_contours(&dir.join("contours.csv"))?;
+    let couplings = uniform_couplings(&rows);
+    let data = ExclusionData {
+        points: rows.iter().map(|r| r.point_masses).collect(),
+        contours,
+    };
+    Ok((data, couplings))
+}
+
+/// The distributions figure's data from a recast folder
+/// (`distributions.csv`, `yields.csv`): histograms, the regions' p_T^miss
+/// edges and, when `with_regions`, the per-region signal and background.
+pub fn read_recast_distributions(
+    dir: &Path,
+    with_regions: bool,
+) -> Result<DistributionsData, PlotError> {
+    let histograms = read_distributions(&dir.join("distributions.csv"))?;
+    let regions = read_yields(&dir.join("yields.csv"))?;
+    Ok(DistributionsData {
+        histograms,
+        region_edges_gev: DistributionsData::edges_from_regions(&regions),
+        regions: if with_regions { regions } else { Vec::new() },
+    })
 }

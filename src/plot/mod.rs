@@ -19,6 +19,7 @@ pub mod data;
 pub mod distributions;
 pub mod dm_nucleon;
 pub mod exclusion;
+pub mod folders;
 mod output;
 pub mod style;
 
@@ -33,6 +34,7 @@ pub use dm_nucleon::{Curve, CurveSource, Interaction, dm_nucleon_figure, render_
 pub use exclusion::{
     ContourLevel, ContourLine, ExclusionData, ScanPoint, exclusion_figure, render_exclusion,
 };
+pub use folders::{FIGURES_DIR, recast_figures, scan_figures};
 pub use output::FigureFiles;
 
 /// Errors from reading figure data or drawing a figure.
