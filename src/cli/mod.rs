@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 
 mod inspect;
 mod plot;
+mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
 /// compare the exclusion with direct detection. Results are estimates, not an
@@ -20,6 +21,8 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
+    Translate(translate::TranslateArgs),
     /// Figures (SVG, with their data as CSV) from the files other commands write.
     Plot(plot::PlotArgs),
 }
@@ -28,6 +31,7 @@ enum Command {
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Translate(args) => translate::run(args),
         Command::Plot(args) => plot::run(args),
     }
 }
