@@ -260,6 +260,11 @@ fn build(data: &ExclusionData, labels: &Labels) -> Result<(String, Table), PlotE
         width: 1,
     };
     let band_colour = style_of(ContourLevel::ExpectedPlus1).colour;
+    // Without a fill the band's edges carry it alone: draw them heavier.
+    let edge_style = SeriesStyle {
+        width: if band.is_some() { 1 } else { 2 },
+        ..style_of(ContourLevel::ExpectedPlus1)
+    };
 
     let mut legend = Vec::new();
     if !observed.is_empty() {
@@ -281,7 +286,7 @@ fn build(data: &ExclusionData, labels: &Labels) -> Result<(String, Table), PlotE
         });
     } else if !m1.is_empty() || !p1.is_empty() {
         legend.push(LegendEntry {
-            sample: Sample::Line(style_of(ContourLevel::ExpectedPlus1)),
+            sample: Sample::Line(edge_style),
             label: "Expected ± 1σ (edges)".into(),
         });
     }
@@ -327,7 +332,7 @@ fn build(data: &ExclusionData, labels: &Labels) -> Result<(String, Table), PlotE
             fill_polygon(root, &frame, poly, band_colour, 0.35)?;
         }
         for c in m1.iter().chain(p1.iter()) {
-            draw_line(root, &frame, &c.points, &style_of(c.level))?;
+            draw_line(root, &frame, &c.points, &edge_style)?;
         }
         draw_line(root, &frame, &on_shell, &guide)?;
         for c in &expected {
