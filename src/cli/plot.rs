@@ -130,8 +130,9 @@ impl LabelArgs {
         }
     }
 
-    /// Checks the output path before any file is read.
+    /// Checks the output path and the label numbers before any file is read.
     fn check_out(&self) -> anyhow::Result<()> {
+        self.labels(None).check()?;
         let ok = self
             .out
             .extension()
@@ -177,8 +178,7 @@ fn report(files: &FigureFiles) {
 }
 
 fn couplings_from(results: &Path) -> anyhow::Result<Option<String>> {
-    let rows = data::read_scan_results(results)
-        .with_context(|| format!("reading the scan results {}", results.display()))?;
+    let rows = data::read_scan_results(results).context("reading the scan results")?;
     Ok(data::uniform_couplings(&rows))
 }
 
@@ -195,8 +195,9 @@ pub fn run(args: PlotArgs) -> anyhow::Result<()> {
 fn exclusion(a: ExclusionArgs) -> anyhow::Result<()> {
     a.labels.check_out()?;
     let mut labels = a.labels.labels(Some(&a.model));
-    let (d, couplings) = data::read_scan_exclusion(&a.scan_dir)
-        .with_context(|| format!("reading the scan folder {}", a.scan_dir.display()))?;
+    labels.check()?;
+    let (d, couplings) =
+        data::read_scan_exclusion(&a.scan_dir).context("reading the scan folder")?;
     if labels.couplings.is_none() {
         labels.couplings = couplings;
         if labels.couplings.is_none() {
@@ -206,8 +207,7 @@ fn exclusion(a: ExclusionArgs) -> anyhow::Result<()> {
             );
         }
     }
-    let files = plot::exclusion_figure(&d, &labels, &a.labels.out)
-        .with_context(|| format!("writing {}", a.labels.out.display()))?;
+    let files = plot::exclusion_figure(&d, &labels, &a.labels.out).context("writing the figure")?;
     report(&files);
     Ok(())
 }
@@ -215,6 +215,10 @@ fn exclusion(a: ExclusionArgs) -> anyhow::Result<()> {
 fn dm_nucleon(a: DmNucleonArgs) -> anyhow::Result<()> {
     a.labels.check_out()?;
     let mut labels = a.labels.labels(Some(&a.model));
+    labels.check()?;
+    if !(a.curve_cl > 0.0 && a.curve_cl < 1.0) {
+        bail!("--curve-cl must lie in (0, 1), got {}", a.curve_cl);
+    }
     let chosen = a
         .interaction
         .as_deref()
@@ -237,8 +241,7 @@ fn dm_nucleon(a: DmNucleonArgs) -> anyhow::Result<()> {
     let mut curves: Vec<Curve> = Vec::new();
     if let Some(dir) = &a.scan {
         let p = dir.join("dm_nucleon.csv");
-        curves = data::read_dm_nucleon(&p)
-            .with_context(|| format!("reading the DM–nucleon curves {}", p.display()))?;
+        curves = data::read_dm_nucleon(&p).context("reading the DM–nucleon curves")?;
         if labels.couplings.is_none() {
             let r = dir.join("results.csv");
             if r.exists() {
@@ -246,8 +249,12 @@ fn dm_nucleon(a: DmNucleonArgs) -> anyhow::Result<()> {
             }
         }
     }
-    let mut kinds: Vec<Interaction> = curves.iter().map(|c| c.interaction).collect();
-    kinds.dedup();
+    let mut kinds: Vec<Interaction> = Vec::new();
+    for c in &curves {
+        if !kinds.contains(&c.interaction) {
+            kinds.push(c.interaction);
+        }
+    }
     let interaction = match (chosen, kinds.as_slice()) {
         (Some(i), _) => i,
         (None, []) => Interaction::SpinIndependent,
@@ -267,15 +274,15 @@ fn dm_nucleon(a: DmNucleonArgs) -> anyhow::Result<()> {
     ] {
         for (label, file) in list {
             let c = data::read_curve_csv(file, label, source, a.curve_cl, interaction)
-                .with_context(|| format!("reading the curve {}", file.display()))?;
+                .context("reading the curve")?;
             curves.push(c);
         }
     }
     if curves.is_empty() {
         bail!("no curve for {} to plot", interaction.as_str());
     }
-    let files = plot::dm_nucleon_figure(&curves, &labels, &a.labels.out)
-        .with_context(|| format!("writing {}", a.labels.out.display()))?;
+    let files =
+        plot::dm_nucleon_figure(&curves, &labels, &a.labels.out).context("writing the figure")?;
     report(&files);
     Ok(())
 }
@@ -284,9 +291,9 @@ fn distributions(a: DistributionsArgs) -> anyhow::Result<()> {
     a.labels.check_out()?;
     let labels = a.labels.labels(None);
     let d = data::read_recast_distributions(&a.recast_dir, !a.no_regions)
-        .with_context(|| format!("reading the recast folder {}", a.recast_dir.display()))?;
-    let files = plot::distributions_figure(&d, &labels, &a.labels.out)
-        .with_context(|| format!("writing {}", a.labels.out.display()))?;
+        .context("reading the recast folder")?;
+    let files =
+        plot::distributions_figure(&d, &labels, &a.labels.out).context("writing the figure")?;
     report(&files);
     Ok(())
 }
@@ -295,10 +302,8 @@ fn cutflow(a: CutflowArgs) -> anyhow::Result<()> {
     a.labels.check_out()?;
     let labels = a.labels.labels(None);
     let p = a.recast_dir.join("cutflow.csv");
-    let d =
-        data::read_cutflow(&p).with_context(|| format!("reading the cut-flow {}", p.display()))?;
-    let files = plot::cutflow_figure(&d, &labels, &a.labels.out)
-        .with_context(|| format!("writing {}", a.labels.out.display()))?;
+    let d = data::read_cutflow(&p).context("reading the cut-flow")?;
+    let files = plot::cutflow_figure(&d, &labels, &a.labels.out).context("writing the figure")?;
     report(&files);
     Ok(())
 }

@@ -39,9 +39,9 @@ fn csv_error(path: &Path, e: &csv::Error) -> PlotError {
 
 impl CsvFile {
     fn open(path: &Path) -> Result<CsvFile, PlotError> {
-        let file = std::fs::File::open(path).map_err(|source| PlotError::Read {
+        let file = std::fs::File::open(path).map_err(|cause| PlotError::Read {
             path: path.to_path_buf(),
-            source,
+            cause,
         })?;
         let mut rdr = csv::ReaderBuilder::new()
             .has_headers(true)
@@ -52,7 +52,7 @@ impl CsvFile {
             .map_err(|e| match e.kind() {
                 csv::ErrorKind::Io(_) => PlotError::Read {
                     path: path.to_path_buf(),
-                    source: std::io::Error::other(e.to_string()),
+                    cause: std::io::Error::other(e.to_string()),
                 },
                 _ => csv_error(path, &e),
             })?

@@ -12,9 +12,9 @@ pub const FIGURES_DIR: &str = "figures";
 
 fn figures_dir(dir: &Path) -> Result<PathBuf, PlotError> {
     let out = dir.join(FIGURES_DIR);
-    std::fs::create_dir_all(&out).map_err(|source| PlotError::Write {
+    std::fs::create_dir_all(&out).map_err(|cause| PlotError::Write {
         path: out.clone(),
-        source,
+        cause,
     })?;
     Ok(out)
 }

@@ -42,12 +42,13 @@ pub use output::FigureFiles;
 #[non_exhaustive]
 pub enum PlotError {
     /// A data file could not be opened or read.
-    #[error("{path}: cannot read: {source}")]
+    #[error("{path}: cannot read: {cause}")]
     Read {
         /// The file.
         path: PathBuf,
-        /// The underlying error.
-        source: std::io::Error,
+        /// The underlying error (kept out of the error chain: the message
+        /// already states it).
+        cause: std::io::Error,
     },
     /// A CSV file is malformed (unbalanced quotes, ragged rows, bad UTF-8).
     #[error("{path}: line {line}: malformed CSV: {message}")]
@@ -120,12 +121,13 @@ pub enum PlotError {
         message: String,
     },
     /// An output file could not be written.
-    #[error("{path}: cannot write: {source}")]
+    #[error("{path}: cannot write: {cause}")]
     Write {
         /// The file.
         path: PathBuf,
-        /// The underlying error.
-        source: std::io::Error,
+        /// The underlying error (kept out of the error chain: the message
+        /// already states it).
+        cause: std::io::Error,
     },
     /// The output path does not end in `.svg`.
     #[error("{path}: figure files must end in `.svg` (PNG is not offered: it needs system fonts)")]
@@ -175,6 +177,12 @@ impl Default for Labels {
 }
 
 impl Labels {
+    /// Checks the numbers before any data is read: √s and luminosity
+    /// positive and finite, the collider CL in (0, 1).
+    pub fn check(&self) -> Result<(), PlotError> {
+        self.validate("this")
+    }
+
     /// Checks the numbers: √s and luminosity positive and finite, the CL in (0, 1).
     fn validate(&self, figure: &'static str) -> Result<(), PlotError> {
         let bad = |what: &str, rule: String| PlotError::InvalidData {

@@ -72,9 +72,9 @@ pub(crate) fn paths_for(svg: &Path) -> Result<FigureFiles, PlotError> {
 
 /// Writes `contents` to `path` through a temporary file in the same folder.
 pub(crate) fn write_atomic(path: &Path, contents: &[u8]) -> Result<(), PlotError> {
-    let err = |source| PlotError::Write {
+    let err = |cause| PlotError::Write {
         path: path.to_path_buf(),
-        source,
+        cause,
     };
     let dir = match path.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
