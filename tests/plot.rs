@@ -1030,3 +1030,17 @@ fn scan_and_recast_folders_get_all_their_figures() {
         ["exclusion.svg", "dm_nucleon_SI.svg", "dm_nucleon_SD-p.svg"]
     );
 }
+
+#[test]
+fn markup_and_control_characters_in_labels_keep_the_svg_well_formed() {
+    let mut d = data::read_cutflow(&fixture("cutflow.csv")).unwrap();
+    d.rows[1].cut = "met < 300 & \"n_jets\" <= 4 \u{1}".into();
+    let labels = Labels {
+        title: Some("S & B <test>".into()),
+        notes: vec!["it's \u{7} fine".into()],
+        ..Labels::default()
+    };
+    let svg = parse(&plot::render_cutflow(&d, &labels).unwrap());
+    assert!(svg.has_text("S & B <test>"));
+    assert!(svg.has_text("met < 300 & \"n_jets\" <= 4"));
+}

@@ -676,7 +676,23 @@ pub(crate) fn text(root: &Root, s: &str, at: (i32, i32), size: f64, colour: Rgb)
     let style = TextStyle::from((FONT, size).into_font())
         .color(&c)
         .pos(Pos::new(HPos::Left, VPos::Top));
-    root.draw(&Text::new(s.to_string(), at, style)).map_err(de)
+    root.draw(&Text::new(xml_safe(s), at, style)).map_err(de)
+}
+
+/// The text with characters XML 1.0 forbids (control characters other than
+/// tab, newline and carriage return) replaced by U+FFFD, so any label from a
+/// data file still gives a well-formed SVG. The backend escapes `<`, `&` and
+/// quotes itself.
+fn xml_safe(s: &str) -> String {
+    s.chars()
+        .map(|c| {
+            if c.is_control() && !matches!(c, '\t' | '\n' | '\r') {
+                '\u{FFFD}'
+            } else {
+                c
+            }
+        })
+        .collect()
 }
 
 /// What a legend entry shows left of its text.
