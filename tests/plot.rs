@@ -192,9 +192,10 @@ fn exclusion_cli_renders_series_labels_and_units() {
         svg.font_families,
         BTreeSet::from(["sans-serif".to_string()])
     );
-    // Series: observed and expected lines, the band as one polygon.
-    assert!(!svg.lines_of(&hex(style::PALETTE[0])).is_empty());
-    assert!(!svg.lines_of(&hex(style::PALETTE[1])).is_empty());
+    // Series: observed (one solid polyline) and expected (dashed: many
+    // short pieces), so they differ without colour; the band as one polygon.
+    assert_eq!(svg.lines_of(&hex(style::PALETTE[0])).len(), 1);
+    assert!(svg.lines_of(&hex(style::PALETTE[1])).len() >= 10);
     let band: Vec<_> = svg
         .polygons
         .iter()

@@ -1,4 +1,4 @@
-//! The DM–nucleon plane (log–log): m_χ [GeV] against σ_SI or σ_SD [cm²],
+//! The DM–nucleon plane (log–log): m_χ in GeV against σ_SI or σ_SD in cm²,
 //! with collider curves translated from the scan, direct-detection reach
 //! curves and imported curves, each labelled with its confidence level, and
 //! the note that a collider curve holds only for the stated model and
@@ -105,7 +105,7 @@ pub struct Curve {
     pub cl: f64,
     /// Which cross-section it bounds.
     pub interaction: Interaction,
-    /// (m_χ [GeV], σ [cm²]) along the curve.
+    /// (m_χ in GeV, σ in cm²) along the curve.
     pub points: Vec<(f64, f64)>,
 }
 

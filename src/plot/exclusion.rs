@@ -70,7 +70,7 @@ impl ContourLevel {
 pub struct ContourLine {
     /// Which limit.
     pub level: ContourLevel,
-    /// (M [GeV], m_χ [GeV]) along the line.
+    /// (M in GeV, m_χ in GeV) along the line.
     pub points: Vec<(f64, f64)>,
 }
 
