@@ -4,6 +4,7 @@
 use clap::{Parser, Subcommand};
 
 mod inspect;
+mod plot;
 mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
@@ -22,6 +23,8 @@ enum Command {
     Inspect(inspect::InspectArgs),
     /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
     Translate(translate::TranslateArgs),
+    /// Figures (SVG, with their data as CSV) from the files other commands write.
+    Plot(plot::PlotArgs),
 }
 
 /// Runs the parsed command.
@@ -29,5 +32,6 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
         Command::Translate(args) => translate::run(args),
+        Command::Plot(args) => plot::run(args),
     }
 }
