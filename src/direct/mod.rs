@@ -26,13 +26,17 @@ pub mod nuclei;
 pub mod rate;
 pub mod reach;
 
-pub use experiment::{Efficiency, Experiment, Resolution};
+pub use experiment::{
+    Efficiency, Experiment, ExperimentConfig, ExperimentParts, HaloConfig, Resolution,
+};
 pub use halo::Halo;
 pub use nuclei::{Isotope, Target};
-pub use rate::{FormFactorChoice, Interaction, RecoilSpectrum};
+pub use rate::{
+    FormFactorChoice, Interaction, RecoilSpectrum, nucleus_cross_section_cm2, reduced_mass_gev,
+};
 pub use reach::{
     CurvePoint, LimitKind, PoissonMethod, limit_curve, limit_curve_points, log_mass_grid,
-    median_expected_count, poisson_upper_limit, read_curve_csv,
+    median_expected_count, poisson_cdf, poisson_upper_limit, read_curve_csv,
 };
 
 use std::path::PathBuf;
