@@ -3,6 +3,7 @@
 
 use clap::{Parser, Subcommand};
 
+mod direct;
 mod inspect;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
@@ -19,11 +20,14 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Direct detection: recoil spectrum, expected counts, limit curve.
+    Direct(direct::DirectArgs),
 }
 
 /// Runs the parsed command.
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Direct(args) => direct::run(args),
     }
 }

@@ -198,9 +198,9 @@ pub(crate) fn read_two_columns(
         line,
         message,
     };
-    let file = std::fs::File::open(path).map_err(|source| DirectError::Io {
+    let file = std::fs::File::open(path).map_err(|reason| DirectError::Io {
         path: path.to_path_buf(),
-        source,
+        reason,
     })?;
     let mut reader = csv::ReaderBuilder::new()
         .trim(csv::Trim::All)
@@ -277,29 +277,44 @@ pub struct HaloConfig {
 }
 
 impl HaloConfig {
-    /// Builds the halo: the standard halo with the given overrides. When v_0
-    /// is overridden and neither v_E nor a date is given, v_E follows v_0
-    /// ([`crate::direct::halo::sun_speed_km_s`]).
+    /// Builds the halo: the standard halo with the given overrides (see
+    /// [`HaloConfig::apply_to`]).
     pub fn build(&self) -> Result<Halo, DirectError> {
-        let std = Halo::standard();
-        let v0 = self.v0_km_s.unwrap_or(std.v0_km_s());
+        self.apply_to(&Halo::standard())
+    }
+
+    /// `base` with the given overrides. When v_0 is overridden and neither
+    /// v_E nor a date is given, v_E follows v_0
+    /// ([`crate::direct::halo::sun_speed_km_s`]); a date sets v_E for that
+    /// day from the resulting v_0.
+    pub fn apply_to(&self, base: &Halo) -> Result<Halo, DirectError> {
         if self.vearth_km_s.is_some() && self.date.is_some() {
             return Err(DirectError::invalid(
                 "halo",
                 "give vearth_km_s or date, not both",
             ));
         }
+        let v0 = self.v0_km_s.unwrap_or(base.v0_km_s());
+        let vearth = match (self.vearth_km_s, self.v0_km_s) {
+            (Some(v), _) => v,
+            (None, Some(v0)) => super::halo::sun_speed_km_s(v0),
+            (None, None) => base.vearth_km_s(),
+        };
         let halo = Halo::new(
-            self.rho_gev_cm3.unwrap_or(std.rho_gev_cm3()),
+            self.rho_gev_cm3.unwrap_or(base.rho_gev_cm3()),
             v0,
-            self.vesc_km_s.unwrap_or(std.vesc_km_s()),
-            self.vearth_km_s
-                .unwrap_or_else(|| super::halo::sun_speed_km_s(v0)),
+            self.vesc_km_s.unwrap_or(base.vesc_km_s()),
+            vearth,
         )?;
         match &self.date {
             Some(d) => halo.with_date(d),
             None => Ok(halo),
         }
+    }
+
+    /// True when no override is given.
+    pub fn is_empty(&self) -> bool {
+        *self == HaloConfig::default()
     }
 }
 
@@ -500,13 +515,13 @@ impl Experiment {
     /// Reads and validates an experiment TOML file; an efficiency CSV is
     /// looked up relative to the file's folder.
     pub fn from_toml_file(path: &Path) -> Result<Experiment, DirectError> {
-        let text = std::fs::read_to_string(path).map_err(|source| DirectError::Io {
+        let text = std::fs::read_to_string(path).map_err(|reason| DirectError::Io {
             path: path.to_path_buf(),
-            source,
+            reason,
         })?;
         let config: ExperimentConfig = toml::from_str(&text).map_err(|e| DirectError::Toml {
             path: path.to_path_buf(),
-            source: Box::new(e),
+            reason: Box::new(e),
         })?;
         let base = path.parent().unwrap_or_else(|| Path::new("."));
         Experiment::from_config(config, base, &path.display().to_string())

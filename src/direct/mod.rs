@@ -35,8 +35,8 @@ pub use rate::{
     FormFactorChoice, Interaction, RecoilSpectrum, nucleus_cross_section_cm2, reduced_mass_gev,
 };
 pub use reach::{
-    CurvePoint, LimitKind, PoissonMethod, limit_curve, limit_curve_points, log_mass_grid,
-    median_expected_count, poisson_cdf, poisson_upper_limit, read_curve_csv,
+    CurvePoint, LimitKind, PoissonMethod, interpolate_curve, limit_curve, limit_curve_points,
+    log_mass_grid, median_expected_count, poisson_cdf, poisson_upper_limit, read_curve_csv,
 };
 
 use std::path::PathBuf;
@@ -65,20 +65,20 @@ pub enum DirectError {
         known: String,
     },
     /// A file could not be read.
-    #[error("{}: cannot read: {source}", path.display())]
+    #[error("{}: cannot read: {reason}", path.display())]
     Io {
         /// The file.
         path: PathBuf,
         /// The operating-system error.
-        source: std::io::Error,
+        reason: std::io::Error,
     },
     /// A TOML file is not valid or has unknown or missing keys.
-    #[error("{}: {source}", path.display())]
+    #[error("{}: {reason}", path.display())]
     Toml {
         /// The file.
         path: PathBuf,
         /// The parser's message (with line and column).
-        source: Box<toml::de::Error>,
+        reason: Box<toml::de::Error>,
     },
     /// A CSV file breaks a rule.
     #[error("{}: line {line}: {message}", path.display())]

@@ -320,3 +320,25 @@ pub fn read_curve_csv(path: &Path) -> Result<Vec<(f64, f64)>, DirectError> {
         })
         .collect()
 }
+
+/// Cross-section of a curve at mass `m_gev` by linear interpolation in
+/// (log m, log σ); `None` outside the curve's mass range or where a
+/// neighbouring point has σ = +∞. Points are sorted by mass first.
+///
+/// # Units
+/// m in GeV, σ in cm².
+pub fn interpolate_curve(curve: &[(f64, f64)], m_gev: f64) -> Option<f64> {
+    let mut pts: Vec<(f64, f64)> = curve.to_vec();
+    pts.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let i = pts.partition_point(|p| p.0 < m_gev);
+    let hi = *pts.get(i)?;
+    if hi.0 == m_gev {
+        return hi.1.is_finite().then_some(hi.1);
+    }
+    let lo = *pts.get(i.checked_sub(1)?)?;
+    if !(lo.1.is_finite() && hi.1.is_finite()) {
+        return None;
+    }
+    let t = (m_gev / lo.0).ln() / (hi.0 / lo.0).ln();
+    Some((lo.1.ln() + t * (hi.1 / lo.1).ln()).exp())
+}
