@@ -52,7 +52,7 @@ const GL4_W: [f64; 4] = [
     0.347_854_845_137_453_8,
 ];
 /// Log-spaced panels across the integration range.
-const LOG_PANELS: usize = 64;
+const LOG_PANELS: usize = 24;
 /// Gaussian tails kept in the resolution kernel, in units of σ.
 const RESOLUTION_REACH_SIGMA: f64 = 8.0;
 
@@ -706,7 +706,7 @@ impl Experiment {
     /// N = exposure · ∫ dE_R  P_det(E_R) · dR/dE_R, P_det from
     /// [`Experiment::detection_probability`]; the integral is composite
     /// 4-point Gauss–Legendre on log-spaced panels (split at efficiency
-    /// nodes, refined to σ/2 around the window edges with resolution),
+    /// nodes, refined to σ around the window edges with resolution),
     /// each isotope cut at its largest recoil energy.
     ///
     /// # Units
@@ -734,6 +734,7 @@ impl Experiment {
                     total += p
                         .nodes
                         .iter()
+                        .filter(|&&(_, w)| w != 0.0)
                         .map(|&(e, w)| w * spectrum.isotope_rate(iso, e))
                         .sum::<f64>();
                 } else {
@@ -816,10 +817,10 @@ fn build_panels(
             let s_hi = r.sigma_kev(upper_kev + RESOLUTION_REACH_SIGMA * r.sigma_kev(upper_kev));
             let lo = (threshold_kev - RESOLUTION_REACH_SIGMA * s_lo).max(0.0);
             let hi = upper_kev + RESOLUTION_REACH_SIGMA * s_hi;
-            // σ/2 panels across each window edge.
+            // σ-wide panels across each window edge.
             for (edge, s) in [(threshold_kev, s_lo), (upper_kev, r.sigma_kev(upper_kev))] {
-                let n = (4.0 * RESOLUTION_REACH_SIGMA) as usize;
-                edges.extend((0..=n).map(|k| edge + s * (k as f64 / 2.0 - RESOLUTION_REACH_SIGMA)));
+                let n = (2.0 * RESOLUTION_REACH_SIGMA) as usize;
+                edges.extend((0..=n).map(|k| edge + s * (k as f64 - RESOLUTION_REACH_SIGMA)));
             }
             (lo, hi)
         }

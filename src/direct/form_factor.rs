@@ -68,9 +68,13 @@ pub fn helm_radius_fm(a: u32) -> f64 {
 /// R. H. Helm, Phys. Rev. 104 (1956) 1466; J. D. Lewin, P. F. Smith,
 /// Astropart. Phys. 6 (1996) 87, Eq. (4.7) (memory; REFERENCES.md §5).
 pub fn helm(q_fm: f64, a: u32) -> f64 {
-    let x = q_fm * helm_radius_fm(a);
+    helm_with_radius(q_fm, helm_radius_fm(a))
+}
+
+/// [`helm`] with the radius r_n [fm] given (precomputed per isotope).
+pub fn helm_with_radius(q_fm: f64, rn_fm: f64) -> f64 {
     let envelope = (-(q_fm * HELM_SKIN_FM).powi(2) / 2.0).exp();
-    three_j1_over_x(x) * envelope
+    three_j1_over_x(q_fm * rn_fm) * envelope
 }
 
 /// 3 j₁(x)/x with a series near x = 0.
@@ -102,7 +106,12 @@ fn three_j1_over_x(x: f64) -> f64 {
 /// (memory). Lewin & Smith quote their own r_n for it; using the Helm r_n
 /// here is this crate's choice.
 pub fn spin_dependent_squared(q_fm: f64, a: u32) -> f64 {
-    let x = q_fm * helm_radius_fm(a);
+    spin_dependent_squared_with_radius(q_fm, helm_radius_fm(a))
+}
+
+/// [`spin_dependent_squared`] with the radius r_n [fm] given.
+pub fn spin_dependent_squared_with_radius(q_fm: f64, rn_fm: f64) -> f64 {
+    let x = q_fm * rn_fm;
     if (2.55..=4.5).contains(&x) {
         0.047
     } else if x.abs() < 1e-4 {

@@ -48,6 +48,12 @@ pub struct Halo {
     vesc_km_s: f64,
     /// Earth speed relative to the galactic rest frame v_E [km/s]; may be 0.
     vearth_km_s: f64,
+    /// Normalisation N = erf z − (2/√π) z e^{−z²} (1 for z = ∞), cached.
+    #[serde(skip)]
+    norm: f64,
+    /// e^{−z²} (0 for z = ∞), cached.
+    #[serde(skip)]
+    exp_minus_z2: f64,
 }
 
 impl Halo {
@@ -61,11 +67,25 @@ impl Halo {
     /// (memory; REFERENCES.md §5).
     pub fn standard() -> Self {
         let v0 = 238.0;
+        Halo::from_valid(0.3, v0, 544.0, sun_speed_km_s(v0))
+    }
+
+    /// Builds from parameters already checked, caching the normalisation.
+    fn from_valid(rho_gev_cm3: f64, v0_km_s: f64, vesc_km_s: f64, vearth_km_s: f64) -> Self {
+        let z = vesc_km_s / v0_km_s;
+        let (norm, exp_minus_z2) = if z.is_finite() {
+            let ez2 = (-z * z).exp();
+            (erf(z) - 2.0 / std::f64::consts::PI.sqrt() * z * ez2, ez2)
+        } else {
+            (1.0, 0.0)
+        };
         Halo {
-            rho_gev_cm3: 0.3,
-            v0_km_s: v0,
-            vesc_km_s: 544.0,
-            vearth_km_s: sun_speed_km_s(v0),
+            rho_gev_cm3,
+            v0_km_s,
+            vesc_km_s,
+            vearth_km_s,
+            norm,
+            exp_minus_z2,
         }
     }
 
@@ -92,12 +112,12 @@ impl Halo {
                 ),
             ));
         }
-        Ok(Halo {
+        Ok(Halo::from_valid(
             rho_gev_cm3,
             v0_km_s,
             vesc_km_s,
             vearth_km_s,
-        })
+        ))
     }
 
     /// Local density ρ_0 [GeV/cm³].
@@ -148,12 +168,7 @@ impl Halo {
         let y = self.vearth_km_s / v0;
         let z = self.vesc_km_s / v0;
         let two_over_sqrt_pi = 2.0 / std::f64::consts::PI.sqrt();
-        let (norm, ez2) = if z.is_finite() {
-            let ez2 = (-z * z).exp();
-            (erf(z) - two_over_sqrt_pi * z * ez2, ez2)
-        } else {
-            (1.0, 0.0)
-        };
+        let (norm, ez2) = (self.norm, self.exp_minus_z2);
         if x >= z + y {
             return 0.0;
         }

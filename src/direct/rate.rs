@@ -4,7 +4,9 @@
 //! Fed by [`crate::direct::halo`] (η(v_min)), [`crate::direct::nuclei`] and
 //! [`crate::direct::form_factor`]; used by [`crate::direct::experiment`].
 
-use super::form_factor::{helm, momentum_transfer_fm, spin_dependent_squared};
+use super::form_factor::{
+    helm_radius_fm, helm_with_radius, momentum_transfer_fm, spin_dependent_squared_with_radius,
+};
 use super::{DirectError, Halo, Isotope, Target, require_non_negative, require_positive};
 use crate::units::{
     C_KM_S, CM_PER_KM, GEV_PER_KG, KEV_PER_GEV, NEUTRON_MASS_GEV, NUCLEON_MASS_GEV,
@@ -124,8 +126,10 @@ pub fn nucleus_cross_section_cm2(
 /// computed once.
 #[derive(Debug, Clone, PartialEq)]
 struct IsotopeTerm {
-    a: u32,
-    mass_gev: f64,
+    /// Form-factor radius r_n [fm].
+    rn_fm: f64,
+    /// q = q_per_sqrt_kev · √E_R [fm⁻¹ per √keV].
+    q_per_sqrt_kev: f64,
     /// v_min = vmin_per_sqrt_kev · √E_R [km/s per √keV].
     vmin_per_sqrt_kev: f64,
     /// dR/dE_R = coeff · F²(q) · η(v_min) [events/(kg day keV) per (s/km)].
@@ -171,8 +175,8 @@ impl RecoilSpectrum {
                 let vmin_per_sqrt_kev =
                     C_KM_S * (iso.mass_gev / (2.0 * mu * mu * KEV_PER_GEV)).sqrt();
                 IsotopeTerm {
-                    a: iso.a,
-                    mass_gev: iso.mass_gev,
+                    rn_fm: helm_radius_fm(iso.a),
+                    q_per_sqrt_kev: momentum_transfer_fm(1.0, iso.mass_gev),
                     vmin_per_sqrt_kev,
                     coeff: iso.mass_fraction
                         * GEV_PER_KG
@@ -226,15 +230,13 @@ impl RecoilSpectrum {
         if e_kev.is_nan() || e_kev < 0.0 || e_kev >= t.max_recoil_kev || t.coeff == 0.0 {
             return 0.0;
         }
-        let eta = self.halo.eta_s_km(t.vmin_per_sqrt_kev * e_kev.sqrt());
+        let sqrt_e = e_kev.sqrt();
+        let eta = self.halo.eta_s_km(t.vmin_per_sqrt_kev * sqrt_e);
+        let q = t.q_per_sqrt_kev * sqrt_e;
         let f2 = match (self.form_factor, self.interaction) {
             (FormFactorChoice::Unity, _) => 1.0,
-            (FormFactorChoice::Standard, Interaction::Si) => {
-                helm(momentum_transfer_fm(e_kev, t.mass_gev), t.a).powi(2)
-            }
-            (FormFactorChoice::Standard, _) => {
-                spin_dependent_squared(momentum_transfer_fm(e_kev, t.mass_gev), t.a)
-            }
+            (FormFactorChoice::Standard, Interaction::Si) => helm_with_radius(q, t.rn_fm).powi(2),
+            (FormFactorChoice::Standard, _) => spin_dependent_squared_with_radius(q, t.rn_fm),
         };
         t.coeff * f2 * eta
     }
