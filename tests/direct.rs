@@ -817,3 +817,88 @@ fn experiment_toml_errors_name_the_file() {
         assert!(m.contains(name) && m.contains(rule), "{m}");
     }
 }
+
+// ---------------------------------------------------------------------------
+// Smaller pieces
+// ---------------------------------------------------------------------------
+
+#[test]
+fn poisson_cdf_for_large_counts() {
+    // scipy 1.17.1 stats.poisson.cdf: sum branch (n = 10⁴) and incomplete-gamma
+    // branch (n = 2×10⁴).
+    assert!(
+        rel(
+            recoil::direct::poisson_cdf(10_000, 10_050.0),
+            3.111_796_449_774e-1
+        ) < 1e-9
+    );
+    assert!(
+        rel(
+            recoil::direct::poisson_cdf(20_000, 20_100.0),
+            2.415_820_664_406e-1
+        ) < 1e-9
+    );
+    // Medians: scipy 1.17.1 stats.poisson.median.
+    assert_eq!(median_expected_count(7.7), 8);
+    assert_eq!(median_expected_count(1e6 + 0.3), 1_000_000);
+}
+
+#[test]
+fn spin_dependent_cross_section_of_fluorine() {
+    // σ_N = σ_p (4/3)(J+1)/J ⟨S_p⟩² (μ_N/μ_p)² (Tovey et al. 2000, memory)
+    // with J = ½, ⟨S_p⟩ = 0.441 (Pacheco & Strottman 1989, memory), m_χ = 50 GeV,
+    // σ_p = 1e-40 cm²: 1.5668406729e-38 cm² (computed with Python 3.11).
+    let f = Target::by_name("fluorine").unwrap();
+    let s = recoil::direct::nucleus_cross_section_cm2(
+        &f.isotopes[0],
+        50.0,
+        1e-40,
+        Interaction::SdProton,
+    );
+    assert!(rel(s, 1.566_840_672_9e-38) < 1e-9, "{s}");
+}
+
+#[test]
+fn curve_interpolation_is_exact_for_power_laws() {
+    // A power law σ = k m^p is a straight line in log–log (arithmetic).
+    let curve: Vec<(f64, f64)> = [100.0, 1.0, 10.0]
+        .iter()
+        .map(|&m: &f64| (m, 1e-45 * m.powf(1.3)))
+        .collect();
+    let got = recoil::direct::interpolate_curve(&curve, 3.0).unwrap();
+    assert!(rel(got, 1e-45 * 3f64.powf(1.3)) < 1e-12);
+    assert_eq!(
+        recoil::direct::interpolate_curve(&curve, 10.0),
+        Some(1e-45 * 10f64.powf(1.3))
+    );
+    assert_eq!(recoil::direct::interpolate_curve(&curve, 0.5), None);
+    assert_eq!(recoil::direct::interpolate_curve(&curve, 200.0), None);
+}
+
+#[test]
+fn halo_overrides() {
+    let base = Halo::standard();
+    let cfg = recoil::direct::HaloConfig {
+        v0_km_s: Some(220.0),
+        ..Default::default()
+    };
+    let h = cfg.apply_to(&base).unwrap();
+    // v_E follows v_0: |(11.1, 220 + 12.24, 7.25)| = 232.6180 km/s (computed with Python 3.11).
+    assert!(
+        (h.vearth_km_s() - 232.618).abs() < 1e-3,
+        "{}",
+        h.vearth_km_s()
+    );
+    assert_eq!(h.vesc_km_s(), 544.0);
+    let both = recoil::direct::HaloConfig {
+        vearth_km_s: Some(230.0),
+        date: Some("2026-01-01".into()),
+        ..Default::default()
+    };
+    assert!(
+        both.apply_to(&base)
+            .unwrap_err()
+            .to_string()
+            .contains("not both")
+    );
+}

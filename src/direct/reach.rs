@@ -56,13 +56,21 @@ impl std::str::FromStr for PoissonMethod {
 }
 
 /// Poisson cumulative probability P(k ≤ n | μ) = Σ_{k=0}^{n} e^{−μ} μ^k / k!,
-/// summed term by term in a fixed order.
+/// summed term by term in a fixed order for n ≤ 10⁴, and as the regularised
+/// upper incomplete gamma function Q(n+1, μ) beyond.
 ///
 /// # Units
 /// μ in events (≥ 0); result a probability.
+///
+/// # References
+/// P(k ≤ n | μ) = Q(n+1, μ): M. Abramowitz, I. A. Stegun, Handbook of
+/// Mathematical Functions (1964), Eq. 26.4.21 (memory).
 pub fn poisson_cdf(n: u64, mu: f64) -> f64 {
     if mu <= 0.0 {
         return 1.0;
+    }
+    if n > 10_000 {
+        return statrs::function::gamma::checked_gamma_ur(n as f64 + 1.0, mu).unwrap_or(f64::NAN);
     }
     let ln_mu = mu.ln();
     let sum: f64 = (0..=n)
@@ -115,6 +123,12 @@ pub fn poisson_upper_limit(
             PoissonMethod::Cls => p / p_b - alpha,
         }
     };
+    if excess(0.0).is_nan() {
+        return Err(DirectError::invalid(
+            ctx,
+            format!("P(k <= {observed} | b = {background}) cannot be evaluated"),
+        ));
+    }
     if excess(0.0) <= 0.0 {
         return Ok(0.0);
     }
@@ -150,8 +164,10 @@ pub fn poisson_upper_limit(
 /// # Units
 /// b in events (finite, ≥ 0).
 pub fn median_expected_count(background: f64) -> u64 {
-    let mut n = 0;
-    while poisson_cdf(n, background) < 0.5 && n < u64::MAX / 2 {
+    // The median lies in [b − ln 2, b + 1/3] (K. P. Choi, Proc. AMS 121
+    // (1994) 245; memory), so a few candidates suffice.
+    let mut n = (background - std::f64::consts::LN_2).floor().max(0.0) as u64;
+    while poisson_cdf(n, background) < 0.5 && (n as f64) < background + 2.0 {
         n += 1;
     }
     n
