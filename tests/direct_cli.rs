@@ -148,3 +148,45 @@ fn bad_input_fails_with_one_clear_message() {
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("SD-q"));
 }
+
+#[test]
+fn experiment_from_flags_matches_the_zero_background_limit() {
+    // n = 0, b = 0 at 90 % CL: s_up = 2.3026 events (PDG Statistics review,
+    // REFERENCES.md §1); the table line prints it.
+    let stdout = run_ok(&[
+        "curve",
+        "--target",
+        "germanium",
+        "--exposure-kg-day",
+        "100",
+        "--threshold-kev",
+        "5",
+        "--upper-kev",
+        "100",
+        "--points",
+        "3",
+        "--mass-min-gev",
+        "10",
+        "--mass-max-gev",
+        "1000",
+    ]);
+    assert!(stdout.contains("s_up = 2.3026 events"), "{stdout}");
+    let o = run(&[
+        "counts",
+        "--target",
+        "germanium",
+        "--exposure-kg-day=-3",
+        "--threshold-kev",
+        "5",
+        "--upper-kev",
+        "40",
+        "--mass-gev",
+        "10",
+    ]);
+    assert_eq!(o.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("exposure must be finite and > 0, got -3 kg·day"),
+        "{err}"
+    );
+}

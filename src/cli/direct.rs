@@ -7,9 +7,9 @@ use std::path::{Path, PathBuf};
 use anyhow::Context;
 
 use recoil::direct::{
-    CurvePoint, Experiment, FormFactorChoice, HaloConfig, Interaction, LimitKind, PoissonMethod,
-    RecoilSpectrum, Target, interpolate_curve, limit_curve_points, log_mass_grid,
-    median_expected_count, poisson_upper_limit, read_curve_csv,
+    CurvePoint, Experiment, ExperimentConfig, FormFactorChoice, HaloConfig, Interaction, LimitKind,
+    PoissonMethod, RecoilSpectrum, Resolution, Target, interpolate_curve, limit_curve_points,
+    log_mass_grid, median_expected_count, poisson_upper_limit, read_curve_csv,
 };
 
 /// Direct detection: recoil spectrum, expected counts, limit curve.
@@ -23,11 +23,11 @@ pub struct DirectArgs {
 #[derive(Debug, clap::Subcommand)]
 enum DirectMode {
     /// dR/dE_R on an energy grid for one WIMP mass and cross-section.
-    Spectrum(SpectrumArgs),
+    Spectrum(Box<SpectrumArgs>),
     /// Expected signal counts of an experiment for WIMP masses and a cross-section.
-    Counts(CountsArgs),
+    Counts(Box<CountsArgs>),
     /// Limit curve σ_lim(m_χ) of an experiment on a log mass grid.
-    Curve(CurveArgs),
+    Curve(Box<CurveArgs>),
 }
 
 /// Halo overrides shared by all modes (default: the experiment's halo, or
@@ -97,12 +97,82 @@ struct SpectrumArgs {
     out: Option<PathBuf>,
 }
 
+/// The experiment: a TOML file, or its parameters as flags.
+#[derive(Debug, clap::Args)]
+struct ExperimentArgs {
+    /// Experiment TOML file; or describe it with --target, --exposure-kg-day,
+    /// --threshold-kev, --upper-kev and the optional flags below.
+    #[arg(long, conflicts_with_all = [
+        "target", "exposure_kg_day", "threshold_kev", "upper_kev", "efficiency",
+        "efficiency_csv", "sigma0_kev", "sigma_sqrt_kev", "background_events", "observed_events",
+    ])]
+    experiment: Option<PathBuf>,
+    /// Target name (xenon, germanium, argon, silicon, nai, cawo4, c3f8, fluorine).
+    #[arg(long, required_unless_present = "experiment")]
+    target: Option<String>,
+    /// Exposure [kg·day].
+    #[arg(long, value_name = "KG_DAY", required_unless_present = "experiment")]
+    exposure_kg_day: Option<f64>,
+    /// Lower edge of the nuclear-recoil energy window [keV].
+    #[arg(long, value_name = "KEV", required_unless_present = "experiment")]
+    threshold_kev: Option<f64>,
+    /// Upper edge of the nuclear-recoil energy window [keV].
+    #[arg(long, value_name = "KEV", required_unless_present = "experiment")]
+    upper_kev: Option<f64>,
+    /// Constant efficiency, a fraction in [0, 1] (default 1).
+    #[arg(long, conflicts_with = "efficiency_csv")]
+    efficiency: Option<f64>,
+    /// Efficiency curve CSV (columns e_kev, efficiency).
+    #[arg(long)]
+    efficiency_csv: Option<PathBuf>,
+    /// Resolution constant term σ₀ [keV]: σ(E) = √(σ₀² + s²·E).
+    #[arg(long, value_name = "KEV")]
+    sigma0_kev: Option<f64>,
+    /// Resolution stochastic term s [√keV] (needs --sigma0-kev).
+    #[arg(long, value_name = "SQRT_KEV", requires = "sigma0_kev")]
+    sigma_sqrt_kev: Option<f64>,
+    /// Expected background events in the window (default 0).
+    #[arg(long, value_name = "EVENTS")]
+    background_events: Option<f64>,
+    /// Observed events in the window (default 0).
+    #[arg(long, value_name = "EVENTS")]
+    observed_events: Option<u64>,
+}
+
+impl ExperimentArgs {
+    /// The experiment configuration given by flags (used when no file is given).
+    fn flags_config(&self) -> ExperimentConfig {
+        ExperimentConfig {
+            name: "command-line".into(),
+            description: "experiment given by command-line flags".into(),
+            target: self.target.clone().unwrap_or_default(),
+            exposure_kg_day: self.exposure_kg_day,
+            exposure_tonne_year: None,
+            threshold_kev: self.threshold_kev.unwrap_or(f64::NAN),
+            upper_kev: self.upper_kev.unwrap_or(f64::NAN),
+            efficiency: match (&self.efficiency, &self.efficiency_csv) {
+                (None, None) => Some(1.0),
+                (e, _) => *e,
+            },
+            efficiency_csv: self.efficiency_csv.clone(),
+            resolution: self.sigma0_kev.map(|sigma0_kev| Resolution {
+                sigma0_kev,
+                sigma_sqrt_kev: self.sigma_sqrt_kev.unwrap_or(0.0),
+            }),
+            background_events: self.background_events.unwrap_or(0.0),
+            observed_events: self.observed_events.unwrap_or(0),
+            cl: None,
+            poisson_method: None,
+            halo: HaloConfig::default(),
+        }
+    }
+}
+
 /// Arguments of `recoil direct counts`.
 #[derive(Debug, clap::Args)]
 struct CountsArgs {
-    /// Experiment TOML.
-    #[arg(long)]
-    experiment: PathBuf,
+    #[command(flatten)]
+    source: ExperimentArgs,
     /// WIMP masses m_χ [GeV] (repeat or comma-separate).
     #[arg(long, value_name = "GEV", required = true, value_delimiter = ',')]
     mass_gev: Vec<f64>,
@@ -122,9 +192,8 @@ struct CountsArgs {
 /// Arguments of `recoil direct curve`.
 #[derive(Debug, clap::Args)]
 struct CurveArgs {
-    /// Experiment TOML.
-    #[arg(long)]
-    experiment: PathBuf,
+    #[command(flatten)]
+    source: ExperimentArgs,
     /// Interaction: SI, SD-p or SD-n.
     #[arg(long, default_value = "SI", value_parser = parse_interaction)]
     interaction: Interaction,
@@ -177,15 +246,29 @@ fn parse_kind(s: &str) -> Result<LimitKind, String> {
 /// Runs `recoil direct`.
 pub fn run(args: DirectArgs) -> anyhow::Result<()> {
     match args.mode {
-        DirectMode::Spectrum(a) => spectrum(a),
-        DirectMode::Counts(a) => counts(a),
-        DirectMode::Curve(a) => curve(a),
+        DirectMode::Spectrum(a) => spectrum(*a),
+        DirectMode::Counts(a) => counts(*a),
+        DirectMode::Curve(a) => curve(*a),
     }
 }
 
-/// Loads an experiment and applies halo overrides.
-fn load_experiment(path: &Path, halo: &HaloArgs) -> anyhow::Result<Experiment> {
-    let exp = Experiment::from_toml_file(path).context("loading the experiment")?;
+/// Builds the experiment from flags or loads it from its file, then applies
+/// halo overrides.
+fn experiment_from(source: &ExperimentArgs, halo: &HaloArgs) -> anyhow::Result<Experiment> {
+    let exp = match &source.experiment {
+        Some(path) => load_experiment(path)?,
+        None => Experiment::from_config(source.flags_config(), Path::new("."), "command line")?,
+    };
+    with_halo_overrides(exp, halo)
+}
+
+/// Loads an experiment file.
+fn load_experiment(path: &Path) -> anyhow::Result<Experiment> {
+    Experiment::from_toml_file(path).context("loading the experiment")
+}
+
+/// Applies halo overrides from the command line.
+fn with_halo_overrides(exp: Experiment, halo: &HaloArgs) -> anyhow::Result<Experiment> {
     let config = halo.config();
     if config.is_empty() {
         return Ok(exp);
@@ -203,7 +286,7 @@ fn spectrum(args: SpectrumArgs) -> anyhow::Result<()> {
         args.points
     );
     let experiment = match &args.experiment {
-        Some(path) => Some(load_experiment(path, &args.halo)?),
+        Some(path) => Some(with_halo_overrides(load_experiment(path)?, &args.halo)?),
         None => None,
     };
     let (target, halo) = match &experiment {
@@ -287,7 +370,7 @@ fn counts(args: CountsArgs) -> anyhow::Result<()> {
         "--sigma-cm2 must be finite and >= 0, got {} cm²",
         args.sigma_cm2
     );
-    let exp = load_experiment(&args.experiment, &args.halo)?;
+    let exp = experiment_from(&args.source, &args.halo)?;
     print_experiment(&exp);
     println!(
         "σ = {:e} cm² ({}); background {} events, observed {}",
@@ -319,7 +402,7 @@ fn counts(args: CountsArgs) -> anyhow::Result<()> {
 
 fn curve(args: CurveArgs) -> anyhow::Result<()> {
     let masses = log_mass_grid(args.mass_min_gev, args.mass_max_gev, args.points)?;
-    let exp = load_experiment(&args.experiment, &args.halo)?;
+    let exp = experiment_from(&args.source, &args.halo)?;
     let exp = exp.clone().with_limit_settings(
         args.cl.unwrap_or(exp.cl()),
         args.method.unwrap_or(exp.method()),

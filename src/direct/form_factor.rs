@@ -45,8 +45,9 @@ pub fn momentum_transfer_fm(e_kev: f64, mass_gev: f64) -> f64 {
 /// A dimensionless; result in fm.
 ///
 /// # References
-/// J. D. Lewin, P. F. Smith, Astropart. Phys. 6 (1996) 87, Eq. (4.11) and
-/// the fit below it (memory; REFERENCES.md §5).
+/// J. D. Lewin, P. F. Smith, Astropart. Phys. 6 (1996) 87, Sec. 4, the
+/// fit of r_n (memory, equation number not re-read: Eq. (4.11) as recalled;
+/// REFERENCES.md §5).
 pub fn helm_radius_fm(a: u32) -> f64 {
     let c = 1.23 * f64::from(a).cbrt() - 0.60;
     let pi2 = std::f64::consts::PI.powi(2);
@@ -66,7 +67,8 @@ pub fn helm_radius_fm(a: u32) -> f64 {
 ///
 /// # References
 /// R. H. Helm, Phys. Rev. 104 (1956) 1466; J. D. Lewin, P. F. Smith,
-/// Astropart. Phys. 6 (1996) 87, Eq. (4.7) (memory; REFERENCES.md §5).
+/// Astropart. Phys. 6 (1996) 87, Sec. 4 (memory, equation number not
+/// re-read: Eq. (4.7) as recalled; REFERENCES.md §5).
 pub fn helm(q_fm: f64, a: u32) -> f64 {
     helm_with_radius(q_fm, helm_radius_fm(a))
 }

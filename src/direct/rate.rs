@@ -210,8 +210,9 @@ impl RecoilSpectrum {
     /// E_R in keV; result in events kg⁻¹ day⁻¹ keV⁻¹ (0 for E_R < 0).
     ///
     /// # References
-    /// J. D. Lewin, P. F. Smith, Astropart. Phys. 6 (1996) 87, Eqs. (3.1)
-    /// and (3.10) in the η form (memory; REFERENCES.md §5).
+    /// J. D. Lewin, P. F. Smith, Astropart. Phys. 6 (1996) 87, Sec. 3, the
+    /// rate with the velocity integral written as η(v_min) (memory, equation
+    /// numbers not re-read; REFERENCES.md §5).
     pub fn rate(&self, e_kev: f64) -> f64 {
         (0..self.terms.len())
             .map(|i| self.isotope_rate(i, e_kev))
