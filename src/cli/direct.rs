@@ -8,8 +8,8 @@ use anyhow::Context;
 
 use recoil::direct::{
     CurvePoint, Experiment, ExperimentConfig, FormFactorChoice, HaloConfig, Interaction, LimitKind,
-    PoissonMethod, RecoilSpectrum, Resolution, Target, interpolate_curve, limit_curve_points,
-    log_mass_grid, median_expected_count, poisson_upper_limit, read_curve_csv,
+    PoissonMethod, RecoilSpectrum, Resolution, Target, interpolate_curve, limit_curve_points_both,
+    log_mass_grid, median_expected_count, read_curve_csv, signal_upper_limit,
 };
 
 /// Direct detection: recoil spectrum, expected counts, limit curve.
@@ -411,12 +411,11 @@ fn curve(args: CurveArgs) -> anyhow::Result<()> {
         Some(path) => Some(read_curve_csv(path).context("reading the comparison curve")?),
         None => None,
     };
-    let observed = limit_curve_points(&exp, &masses, args.interaction, LimitKind::Observed)?;
-    let expected = limit_curve_points(&exp, &masses, args.interaction, LimitKind::MedianExpected)?;
+    let (observed, expected) = limit_curve_points_both(&exp, &masses, args.interaction)?;
     let b = exp.background_events();
     let n_med = median_expected_count(b);
-    let s_obs = poisson_upper_limit(exp.observed_events(), b, exp.cl(), exp.method())?;
-    let s_exp = poisson_upper_limit(n_med, b, exp.cl(), exp.method())?;
+    let s_obs = signal_upper_limit(&exp, LimitKind::Observed)?;
+    let s_exp = signal_upper_limit(&exp, LimitKind::MedianExpected)?;
     print_experiment(&exp);
     println!(
         "Limit: {} % CL, {} Poisson limit, {}; background {b} events; observed {} → s_up = {s_obs:.4} events; median expected count {n_med} → s_up = {s_exp:.4} events",

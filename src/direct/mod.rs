@@ -36,7 +36,8 @@ pub use rate::{
 };
 pub use reach::{
     CurvePoint, LimitKind, PoissonMethod, interpolate_curve, limit_curve, limit_curve_points,
-    log_mass_grid, median_expected_count, poisson_cdf, poisson_upper_limit, read_curve_csv,
+    limit_curve_points_both, log_mass_grid, median_expected_count, poisson_cdf,
+    poisson_upper_limit, read_curve_csv, signal_upper_limit,
 };
 
 use std::path::PathBuf;

@@ -228,38 +228,86 @@ pub fn limit_curve_points(
     interaction: Interaction,
     kind: LimitKind,
 ) -> Result<Vec<CurvePoint>, DirectError> {
+    let s_up = signal_upper_limit(experiment, kind)?;
+    let per_cm2 = events_per_cm2(experiment, masses_gev, interaction)?;
+    Ok(points_from(masses_gev, &per_cm2, s_up))
+}
+
+/// The observed and the median expected curves together (the expected
+/// counts are computed once); see [`limit_curve_points`].
+pub fn limit_curve_points_both(
+    experiment: &Experiment,
+    masses_gev: &[f64],
+    interaction: Interaction,
+) -> Result<(Vec<CurvePoint>, Vec<CurvePoint>), DirectError> {
+    let s_obs = signal_upper_limit(experiment, LimitKind::Observed)?;
+    let s_exp = signal_upper_limit(experiment, LimitKind::MedianExpected)?;
+    let per_cm2 = events_per_cm2(experiment, masses_gev, interaction)?;
+    Ok((
+        points_from(masses_gev, &per_cm2, s_obs),
+        points_from(masses_gev, &per_cm2, s_exp),
+    ))
+}
+
+/// Upper limit on the signal events of an experiment with its CL and
+/// method, from the observed count or the median background-only count.
+///
+/// # Units
+/// Events.
+pub fn signal_upper_limit(experiment: &Experiment, kind: LimitKind) -> Result<f64, DirectError> {
+    let n = match kind {
+        LimitKind::Observed => experiment.observed_events(),
+        LimitKind::MedianExpected => median_expected_count(experiment.background_events()),
+    };
+    poisson_upper_limit(
+        n,
+        experiment.background_events(),
+        experiment.cl(),
+        experiment.method(),
+    )
+}
+
+/// Expected signal events per cm² at each mass, in parallel (each mass
+/// independent, so identical on any number of threads).
+fn events_per_cm2(
+    experiment: &Experiment,
+    masses_gev: &[f64],
+    interaction: Interaction,
+) -> Result<Vec<f64>, DirectError> {
     if let Some(bad) = masses_gev.iter().find(|m| !(m.is_finite() && **m > 0.0)) {
         return Err(DirectError::invalid(
             "limit curve",
             format!("masses must be finite and > 0, got {bad} GeV"),
         ));
     }
-    let n = match kind {
-        LimitKind::Observed => experiment.observed_events(),
-        LimitKind::MedianExpected => median_expected_count(experiment.background_events()),
-    };
-    let s_up = poisson_upper_limit(
-        n,
-        experiment.background_events(),
-        experiment.cl(),
-        experiment.method(),
-    )?;
     masses_gev
         .par_iter()
         .map(|&m| {
-            let counts = experiment.expected_counts(m, REFERENCE_SIGMA_CM2, interaction)?;
-            let per_cm2 = counts / REFERENCE_SIGMA_CM2;
+            Ok(
+                experiment.expected_counts(m, REFERENCE_SIGMA_CM2, interaction)?
+                    / REFERENCE_SIGMA_CM2,
+            )
+        })
+        .collect()
+}
+
+/// Curve points from the per-cm² counts and the signal limit.
+fn points_from(masses_gev: &[f64], per_cm2: &[f64], s_up: f64) -> Vec<CurvePoint> {
+    masses_gev
+        .iter()
+        .zip(per_cm2)
+        .map(|(&m, &per_cm2)| {
             let (sigma, at_sigma) = if per_cm2 > 0.0 {
                 (s_up / per_cm2, s_up)
             } else {
                 (f64::INFINITY, 0.0)
             };
-            Ok(CurvePoint {
+            CurvePoint {
                 m_dm_gev: m,
                 sigma_cm2: sigma,
                 expected_counts_at_sigma: at_sigma,
                 events_per_cm2: per_cm2,
-            })
+            }
         })
         .collect()
 }
