@@ -671,6 +671,21 @@ fn bad_experiment_parameters_are_rejected_with_clear_messages() {
     let m = message(Target::by_name("unobtainium").unwrap_err());
     assert!(m.contains("unobtainium") && m.contains("xenon"), "{m}");
 
+    let mut broken = Target::by_name("germanium").unwrap();
+    broken.isotopes[0].mass_fraction = 0.9;
+    let m = message(
+        RecoilSpectrum::new(
+            &Halo::standard(),
+            &broken,
+            50.0,
+            1e-45,
+            Interaction::Si,
+            FormFactorChoice::Standard,
+        )
+        .unwrap_err(),
+    );
+    assert!(m.contains("sum to 1"), "{m}");
+
     assert!(Halo::new(0.3, 238.0, 200.0, 250.0).is_err());
     assert!(Halo::new(-0.3, 238.0, 544.0, 250.0).is_err());
     let halo = Halo::standard();

@@ -427,6 +427,7 @@ impl Experiment {
         let ctx = format!("experiment {}", parts.name);
         let ctx = ctx.as_str();
         require_positive(ctx, "exposure", parts.exposure_kg_day, "kg·day")?;
+        parts.target.validate()?;
         require_non_negative(ctx, "threshold_kev", parts.threshold_kev, "keV")?;
         require_positive(ctx, "upper_kev", parts.upper_kev, "keV")?;
         if parts.threshold_kev >= parts.upper_kev {

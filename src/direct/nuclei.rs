@@ -305,6 +305,40 @@ impl Target {
         })
     }
 
+    /// Checks a target built by hand: at least one isotope; masses finite
+    /// and > 0; abundances and mass fractions in [0, 1], mass fractions
+    /// summing to 1 (to 10⁻⁶); J ≥ 0 and spin values finite.
+    pub fn validate(&self) -> Result<(), DirectError> {
+        let ctx = format!("target {}", self.name);
+        if self.isotopes.is_empty() {
+            return Err(DirectError::invalid(ctx, "has no isotopes"));
+        }
+        for i in &self.isotopes {
+            require_positive(&ctx, &format!("{} mass_gev", i.label), i.mass_gev, "GeV")?;
+            let fractions_ok =
+                (0.0..=1.0).contains(&i.abundance) && (0.0..=1.0).contains(&i.mass_fraction);
+            let spins_ok =
+                i.spin_j.is_finite() && i.spin_j >= 0.0 && i.s_p.is_finite() && i.s_n.is_finite();
+            if !fractions_ok || !spins_ok || i.a == 0 {
+                return Err(DirectError::invalid(
+                    &ctx,
+                    format!(
+                        "isotope {}: need A > 0, abundance and mass fraction in [0, 1], J >= 0 and finite spins; got A = {}, abundance {}, mass fraction {}, J = {}, S_p = {}, S_n = {}",
+                        i.label, i.a, i.abundance, i.mass_fraction, i.spin_j, i.s_p, i.s_n
+                    ),
+                ));
+            }
+        }
+        let total: f64 = self.isotopes.iter().map(|i| i.mass_fraction).sum();
+        if (total - 1.0).abs() > 1e-6 {
+            return Err(DirectError::invalid(
+                ctx,
+                format!("mass fractions must sum to 1, got {total}"),
+            ));
+        }
+        Ok(())
+    }
+
     /// A target made of one isotope (mass fraction 1), e.g. for studies of
     /// a single nucleus. Spin-dependent values are given explicitly.
     ///

@@ -164,6 +164,7 @@ impl RecoilSpectrum {
     ) -> Result<Self, DirectError> {
         require_positive("recoil spectrum", "m_chi_gev", m_chi_gev, "GeV")?;
         require_non_negative("recoil spectrum", "sigma_cm2", sigma_cm2, "cm²")?;
+        target.validate()?;
         let vmax = halo.max_speed_km_s();
         let units = CM_PER_KM * SECONDS_PER_DAY / KEV_PER_GEV;
         let terms = target
