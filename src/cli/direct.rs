@@ -76,7 +76,7 @@ struct SpectrumArgs {
     #[arg(long, value_name = "GEV")]
     mass_gev: f64,
     /// DM–nucleon cross-section σ [cm²] (σ_n for SI and SD-n, σ_p for SD-p).
-    #[arg(long, value_name = "CM2", default_value_t = 1e-45)]
+    #[arg(long, value_name = "CM2", default_value = "1e-45")]
     sigma_cm2: f64,
     /// Interaction: SI, SD-p or SD-n.
     #[arg(long, default_value = "SI", value_parser = parse_interaction)]
@@ -177,7 +177,7 @@ struct CountsArgs {
     #[arg(long, value_name = "GEV", required = true, value_delimiter = ',')]
     mass_gev: Vec<f64>,
     /// DM–nucleon cross-section σ [cm²].
-    #[arg(long, value_name = "CM2", default_value_t = 1e-45)]
+    #[arg(long, value_name = "CM2", default_value = "1e-45")]
     sigma_cm2: f64,
     /// Interaction: SI, SD-p or SD-n.
     #[arg(long, default_value = "SI", value_parser = parse_interaction)]

@@ -13,7 +13,7 @@
 //! description = "Invented scenario"
 //! target = "germanium"          # see Target::known_names()
 //! exposure_kg_day = 3000.0      # or exposure_tonne_year = 8.2
-//! threshold_kev = 5.0           # nuclear-recoil energy window [keV]
+//! threshold_kev = 5.0           # nuclear-recoil energy window \[keV\]
 //! upper_kev = 100.0
 //! efficiency = 0.8              # or efficiency_csv = "eff.csv" (columns e_kev, efficiency)
 //! background_events = 0.5       # expected background in the window
@@ -61,7 +61,7 @@ const RESOLUTION_REACH_SIGMA: f64 = 8.0;
 pub enum Efficiency {
     /// The same fraction at every energy.
     Constant(f64),
-    /// Piecewise-linear curve through (E_R [keV], ε) nodes, strictly
+    /// Piecewise-linear curve through (E_R \[keV\], ε) nodes, strictly
     /// increasing in energy, covering the energy window.
     Curve(Vec<(f64, f64)>),
 }
@@ -243,7 +243,7 @@ pub(crate) fn read_two_columns(
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Resolution {
-    /// Constant term σ₀ [keV].
+    /// Constant term σ₀ \[keV\].
     pub sigma0_kev: f64,
     /// Stochastic term s [√keV] (σ² grows as s²·E).
     #[serde(default)]
@@ -251,7 +251,7 @@ pub struct Resolution {
 }
 
 impl Resolution {
-    /// σ(E) [keV] at true energy E [keV].
+    /// σ(E) \[keV\] at true energy E \[keV\].
     ///
     /// # Formula
     /// σ(E) = √(σ₀² + s² E) (common practice, no source).
@@ -372,8 +372,8 @@ pub struct Experiment {
     cl: f64,
     method: PoissonMethod,
     halo: Halo,
-    /// True-energy integration panels and their Gauss nodes (energy [keV],
-    /// weight × detection probability [keV]).
+    /// True-energy integration panels and their Gauss nodes (energy \[keV\],
+    /// weight × detection probability \[keV\]).
     panels: Vec<Panel>,
 }
 
@@ -397,15 +397,15 @@ pub struct ExperimentParts {
     pub target: Target,
     /// Exposure [kg·day].
     pub exposure_kg_day: f64,
-    /// Energy window lower edge [keV].
+    /// Energy window lower edge \[keV\].
     pub threshold_kev: f64,
-    /// Energy window upper edge [keV].
+    /// Energy window upper edge \[keV\].
     pub upper_kev: f64,
     /// Efficiency.
     pub efficiency: Efficiency,
     /// Optional resolution.
     pub resolution: Option<Resolution>,
-    /// Expected background [events].
+    /// Expected background \[events\].
     pub background_events: f64,
     /// Observed events.
     pub observed_events: u64,
@@ -624,7 +624,7 @@ impl Experiment {
     pub fn exposure_kg_day(&self) -> f64 {
         self.exposure_kg_day
     }
-    /// Energy window [keV]: (threshold, upper edge).
+    /// Energy window \[keV\]: (threshold, upper edge).
     pub fn window_kev(&self) -> (f64, f64) {
         (self.threshold_kev, self.upper_kev)
     }
@@ -636,7 +636,7 @@ impl Experiment {
     pub fn resolution(&self) -> Option<&Resolution> {
         self.resolution.as_ref()
     }
-    /// Expected background [events].
+    /// Expected background \[events\].
     pub fn background_events(&self) -> f64 {
         self.background_events
     }
@@ -678,7 +678,7 @@ impl Experiment {
     }
 
     /// Probability that a recoil of true energy E is detected inside the
-    /// window: ε(E)·1[window] without resolution, ∫_window ε(E') N(E'; E, σ(E)) dE'
+    /// window: ε(E)·1\[window\] without resolution, ∫_window ε(E') N(E'; E, σ(E)) dE'
     /// with it.
     ///
     /// # Units

@@ -73,7 +73,7 @@ pub fn helm(q_fm: f64, a: u32) -> f64 {
     helm_with_radius(q_fm, helm_radius_fm(a))
 }
 
-/// [`helm`] with the radius r_n [fm] given (precomputed per isotope).
+/// [`helm`] with the radius r_n \[fm\] given (precomputed per isotope).
 pub fn helm_with_radius(q_fm: f64, rn_fm: f64) -> f64 {
     let envelope = (-(q_fm * HELM_SKIN_FM).powi(2) / 2.0).exp();
     three_j1_over_x(q_fm * rn_fm) * envelope
@@ -111,7 +111,7 @@ pub fn spin_dependent_squared(q_fm: f64, a: u32) -> f64 {
     spin_dependent_squared_with_radius(q_fm, helm_radius_fm(a))
 }
 
-/// [`spin_dependent_squared`] with the radius r_n [fm] given.
+/// [`spin_dependent_squared`] with the radius r_n \[fm\] given.
 pub fn spin_dependent_squared_with_radius(q_fm: f64, rn_fm: f64) -> f64 {
     let x = q_fm * rn_fm;
     if (2.55..=4.5).contains(&x) {

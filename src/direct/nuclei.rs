@@ -37,7 +37,7 @@ pub struct Isotope {
     pub z: u32,
     /// Mass number A.
     pub a: u32,
-    /// Nuclear mass m_T [GeV].
+    /// Nuclear mass m_T \[GeV\].
     pub mass_gev: f64,
     /// Number fraction of this isotope among the atoms of its element, in [0, 1].
     pub abundance: f64,

@@ -126,7 +126,7 @@ pub fn nucleus_cross_section_cm2(
 /// computed once.
 #[derive(Debug, Clone, PartialEq)]
 struct IsotopeTerm {
-    /// Form-factor radius r_n [fm].
+    /// Form-factor radius r_n \[fm\].
     rn_fm: f64,
     /// q = q_per_sqrt_kev · √E_R [fm⁻¹ per √keV].
     q_per_sqrt_kev: f64,
@@ -134,7 +134,7 @@ struct IsotopeTerm {
     vmin_per_sqrt_kev: f64,
     /// dR/dE_R = coeff · F²(q) · η(v_min) [events/(kg day keV) per (s/km)].
     coeff: f64,
-    /// Largest recoil energy (v_min = v_esc + v_E) [keV].
+    /// Largest recoil energy (v_min = v_esc + v_E) \[keV\].
     max_recoil_kev: f64,
 }
 
@@ -249,7 +249,7 @@ impl RecoilSpectrum {
     }
 
     /// Largest recoil energy of isotope `index` (where v_min reaches
-    /// v_esc + v_E) [keV]; +∞ for an untruncated halo, 0 out of range.
+    /// v_esc + v_E) \[keV\]; +∞ for an untruncated halo, 0 out of range.
     pub fn max_recoil_kev(&self, index: usize) -> f64 {
         self.terms.get(index).map_or(0.0, |t| t.max_recoil_kev)
     }

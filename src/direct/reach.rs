@@ -195,9 +195,9 @@ impl LimitKind {
 /// One point of a limit curve.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct CurvePoint {
-    /// WIMP mass [GeV].
+    /// WIMP mass \[GeV\].
     pub m_dm_gev: f64,
-    /// Upper limit on the DM–nucleon cross-section [cm²] (+∞ without sensitivity).
+    /// Upper limit on the DM–nucleon cross-section \[cm²\] (+∞ without sensitivity).
     pub sigma_cm2: f64,
     /// Expected signal events at `sigma_cm2` (the signal upper limit; 0 without sensitivity).
     pub expected_counts_at_sigma: f64,
@@ -312,7 +312,7 @@ fn points_from(masses_gev: &[f64], per_cm2: &[f64], s_up: f64) -> Vec<CurvePoint
         .collect()
 }
 
-/// Observed limit curve as (m_χ [GeV], σ_lim [cm²]) pairs, in the order of
+/// Observed limit curve as (m_χ \[GeV\], σ_lim \[cm²\]) pairs, in the order of
 /// `masses_gev` (see [`limit_curve_points`]).
 pub fn limit_curve(
     experiment: &Experiment,
