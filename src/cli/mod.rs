@@ -3,6 +3,7 @@
 
 use clap::{Parser, Subcommand};
 
+mod direct;
 mod inspect;
 mod plot;
 mod translate;
@@ -25,6 +26,8 @@ enum Command {
     Translate(translate::TranslateArgs),
     /// Figures (SVG, with their data as CSV) from the files other commands write.
     Plot(plot::PlotArgs),
+    /// Direct detection: recoil spectrum, expected counts, limit curve.
+    Direct(direct::DirectArgs),
 }
 
 /// Runs the parsed command.
@@ -33,5 +36,6 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Inspect(args) => inspect::run(args),
         Command::Translate(args) => translate::run(args),
         Command::Plot(args) => plot::run(args),
+        Command::Direct(args) => direct::run(args),
     }
 }
