@@ -4,6 +4,7 @@
 use clap::{Parser, Subcommand};
 
 mod inspect;
+mod limit;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
 /// compare the exclusion with direct detection. Results are estimates, not an
@@ -19,11 +20,14 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// CLs upper limits for counting experiments (exact, asymptotic, pseudo-experiments).
+    Limit(limit::LimitArgs),
 }
 
 /// Runs the parsed command.
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Limit(args) => limit::run(args),
     }
 }
