@@ -9,7 +9,7 @@ use statrs::function::erf::erfc;
 
 use super::StatsError;
 use super::likelihood::{CountingModel, Data, Fit};
-use super::root::solve_decreasing_positive;
+use super::root::solve_decreasing_positive_from;
 
 /// Standard normal cumulative distribution Φ(x) = ½ erfc(−x/√2).
 ///
@@ -26,6 +26,15 @@ pub fn norm_cdf(x: f64) -> f64 {
 /// M. Abramowitz, I. A. Stegun (1964), Eq. 26.2.29.
 pub fn norm_sf(x: f64) -> f64 {
     0.5 * erfc(x / std::f64::consts::SQRT_2)
+}
+
+/// Inverse of the survival function: x with 1 − Φ(x) = p, p in (0, 1).
+///
+/// # References
+/// Φ⁻¹ via the inverse complementary error function, x = √2 erfc⁻¹(2p)
+/// (Abramowitz & Stegun (1964), Eq. 26.2.29 inverted).
+pub fn inverse_norm_sf(p: f64) -> f64 {
+    std::f64::consts::SQRT_2 * statrs::function::erf::erfc_inv(2.0 * p)
 }
 
 /// CL_{s+b}, CL_b and their ratio CLs.
@@ -145,27 +154,50 @@ impl<'a> Asymptotic<'a> {
         (2.0 + 2.0 * b.max(n).sqrt()) / self.model.total_signal()
     }
 
-    /// Observed upper limit on μ: CLs(μ) = α.
-    pub fn observed_limit(&self, alpha: f64) -> Result<f64, StatsError> {
-        solve_decreasing_positive(
+    /// Observed upper limit on μ: CLs(μ) = α, searched from `guess`
+    /// (e.g. the median expected limit) or from a rough scale if `None`.
+    pub fn observed_limit_from(&self, alpha: f64, guess: Option<f64>) -> Result<f64, StatsError> {
+        let (start, factor) = match guess {
+            Some(g) if g.is_finite() && g > 0.0 => (g, 1.3),
+            _ => (self.guess(), 2.0),
+        };
+        solve_decreasing_positive_from(
             |mu| Ok(self.cls(mu)?.cls - alpha),
-            self.guess(),
+            start,
+            factor,
             1e-7,
             "asymptotic observed limit on μ",
         )
     }
 
+    /// Observed upper limit on μ: CLs(μ) = α.
+    pub fn observed_limit(&self, alpha: f64) -> Result<f64, StatsError> {
+        self.observed_limit_from(alpha, None)
+    }
+
     /// Expected upper limits on μ at N = −2, −1, 0, +1, +2.
+    ///
+    /// The median is found first; each band then starts from the median
+    /// scaled by the Gaussian ratio (N + Φ⁻¹(1 − αΦ(N)))/Φ⁻¹(1 − α/2)
+    /// (CCGV Eq. (89)), which only speeds up the search.
     pub fn expected_limits(&self, alpha: f64) -> Result<[f64; 5], StatsError> {
-        let mut out = [0.0; 5];
-        for (slot, n_sigma) in out.iter_mut().zip(-2..=2) {
-            let n_sigma = f64::from(n_sigma);
-            *slot = solve_decreasing_positive(
+        let solve = |n_sigma: f64, start: f64, factor: f64| {
+            solve_decreasing_positive_from(
                 |mu| Ok(expected_cls(self.q_asimov(mu)?, n_sigma) - alpha),
-                self.guess(),
+                start,
+                factor,
                 1e-7,
                 "asymptotic expected limit on μ",
-            )?;
+            )
+        };
+        let median = solve(0.0, self.guess(), 2.0)?;
+        let z = |n: f64| n + inverse_norm_sf(alpha * norm_cdf(n));
+        let mut out = [median; 5];
+        for (slot, n_sigma) in out.iter_mut().zip(-2..=2) {
+            let n_sigma = f64::from(n_sigma);
+            if n_sigma != 0.0 {
+                *slot = solve(n_sigma, median * z(n_sigma) / z(0.0), 1.1)?;
+            }
         }
         Ok(out)
     }

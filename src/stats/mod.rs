@@ -263,13 +263,14 @@ fn limit_of(
         }
         Method::Asymptotic => {
             let calc = asymptotic::Asymptotic::new(&model)?;
+            let expected = calc.expected_limits(alpha)?;
             Ok(Limit {
                 cl: opts.cl,
                 method: opts.method,
                 cls_mu1: calc.cls(1.0)?.cls,
                 cls_mu1_mc_unc: None,
-                mu_up_observed: calc.observed_limit(alpha)?,
-                mu_up_expected: calc.expected_limits(alpha)?,
+                mu_up_observed: calc.observed_limit_from(alpha, Some(expected[2]))?,
+                mu_up_expected: expected,
                 warnings,
             })
         }

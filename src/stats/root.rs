@@ -133,7 +133,7 @@ where
 /// Bracketing by expansion: W. H. Press et al., "Numerical Recipes", 3rd ed.
 /// (2007), §9.1; refinement: Brent (1973), see [`brent`].
 pub fn solve_decreasing_positive<F>(
-    mut f: F,
+    f: F,
     guess: f64,
     rtol: f64,
     what: &str,
@@ -141,6 +141,22 @@ pub fn solve_decreasing_positive<F>(
 where
     F: FnMut(f64) -> Result<f64, StatsError>,
 {
+    solve_decreasing_positive_from(f, guess, 2.0, rtol, what)
+}
+
+/// As [`solve_decreasing_positive`], expanding the bracket by `factor` > 1
+/// per step (a factor near 1 suits a good guess).
+pub fn solve_decreasing_positive_from<F>(
+    mut f: F,
+    guess: f64,
+    factor: f64,
+    rtol: f64,
+    what: &str,
+) -> Result<f64, StatsError>
+where
+    F: FnMut(f64) -> Result<f64, StatsError>,
+{
+    let factor = if factor > 1.0 { factor } else { 2.0 };
     if !(guess.is_finite() && guess > 0.0) {
         return Err(StatsError::NoBracket(format!(
             "{what}: starting point must be finite and > 0, got {guess}"
@@ -158,7 +174,7 @@ where
         }
         lo = hi;
         flo = fhi;
-        hi *= 2.0;
+        hi *= factor;
         fhi = f(hi)?;
         n += 1;
         if n > MAX_EXPANSIONS || !hi.is_finite() {
@@ -174,7 +190,7 @@ where
         }
         hi = lo;
         fhi = flo;
-        lo *= 0.5;
+        lo /= factor;
         flo = f(lo)?;
         n += 1;
         if n > MAX_EXPANSIONS || lo == 0.0 {

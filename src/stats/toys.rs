@@ -15,7 +15,7 @@ use rayon::prelude::*;
 use super::StatsError;
 use super::asymptotic::norm_cdf;
 use super::likelihood::{CountingModel, Data, Fit};
-use super::root::solve_decreasing_positive;
+use super::root::solve_decreasing_positive_from;
 
 /// Stream of the signal-plus-background pseudo-experiments.
 const STREAM_SB: u64 = 0;
@@ -210,9 +210,10 @@ impl<'a> Toys<'a> {
 
     /// Observed upper limit on μ from CLs(μ) = α, searched from `guess`.
     pub fn observed_limit(&self, alpha: f64, guess: f64) -> Result<f64, StatsError> {
-        solve_decreasing_positive(
+        solve_decreasing_positive_from(
             |mu| Ok(self.cls(mu)?.cls - alpha),
             guess,
+            1.3,
             1e-4,
             "pseudo-experiment observed limit on μ",
         )
@@ -222,9 +223,10 @@ impl<'a> Toys<'a> {
     pub fn expected_limits(&self, alpha: f64, guess: f64) -> Result<[f64; 5], StatsError> {
         let mut out = [0.0; 5];
         for (slot, n_sigma) in out.iter_mut().zip(-2..=2) {
-            *slot = solve_decreasing_positive(
+            *slot = solve_decreasing_positive_from(
                 |mu| Ok(self.expected_cls(mu, f64::from(n_sigma))? - alpha),
                 guess,
+                1.3,
                 1e-4,
                 "pseudo-experiment expected limit on μ",
             )?;
