@@ -409,25 +409,29 @@ impl CountingModel {
         )))
     }
 
-    /// Gradient and Hessian of −ln L in the parameters p = (μ if `free_mu`,
-    /// θ).
+    /// Gradient `g` and Hessian `h` (row-major, np × np) of −ln L in the
+    /// parameters p = (μ if `free_mu`, θ); `d` is scratch of length np.
+    #[allow(clippy::too_many_arguments)]
     fn derivatives(
         &self,
         mu: f64,
         theta: &[f64],
         data: &Data,
         free_mu: bool,
-    ) -> (DVector<f64>, DMatrix<f64>) {
+        g: &mut [f64],
+        h: &mut [f64],
+        d: &mut [f64],
+    ) {
         let off = usize::from(free_mu);
         let np = off + self.n_theta;
         let nb = self.bkg_map.ncols();
-        let mut g = DVector::zeros(np);
-        let mut h = DMatrix::zeros(np, np);
+        g.fill(0.0);
+        h.fill(0.0);
         for k in 0..self.n_theta {
             g[off + k] = theta[k] - data.globals[k];
-            h[(off + k, off + k)] = 1.0;
+            h[(off + k) * np + off + k] = 1.0;
         }
-        let mut d = DVector::zeros(np);
+        let log_normal = self.constraint == BackgroundConstraint::LogNormal;
         for (i, &n) in data.counts.iter().enumerate() {
             let (nu, b, s) = self.parts(i, mu, theta);
             let nu_safe = nu.max(f64::MIN_POSITIVE);
@@ -437,7 +441,6 @@ impl CountingModel {
             if free_mu {
                 d[0] = s;
             }
-            let log_normal = self.constraint == BackgroundConstraint::LogNormal;
             for k in 0..nb {
                 let l = self.bkg_map[(i, k)];
                 d[off + k] = if log_normal { b * l } else { l };
@@ -451,28 +454,43 @@ impl CountingModel {
                 d[off + k] = mu * dsdx;
                 (k, dsdx)
             });
-            g.axpy(r, &d, 1.0);
-            h.ger(c, &d, &d, 1.0);
+            for (j, dj) in d.iter().enumerate() {
+                if *dj == 0.0 {
+                    continue;
+                }
+                g[j] += r * dj;
+                for (l, dl) in d.iter().enumerate() {
+                    h[j * np + l] += c * dj * dl;
+                }
+            }
             // Second derivatives of ν.
             if log_normal {
                 for k in 0..nb {
                     for l in 0..nb {
-                        h[(off + k, off + l)] +=
+                        h[(off + k) * np + off + l] +=
                             r * b * self.bkg_map[(i, k)] * self.bkg_map[(i, l)];
                     }
                 }
             }
             if let Some((k, dsdx)) = ds {
                 if free_mu {
-                    h[(0, off + k)] += r * dsdx;
-                    h[(off + k, 0)] += r * dsdx;
+                    h[off + k] += r * dsdx;
+                    h[(off + k) * np] += r * dsdx;
                 }
                 if log_normal {
-                    h[(off + k, off + k)] += r * mu * dsdx * self.sig_width[i];
+                    h[(off + k) * np + off + k] += r * mu * dsdx * self.sig_width[i];
                 }
             }
         }
-        (g, h)
+    }
+
+    /// −ln L at parameters p = (μ if `free_mu`, θ).
+    fn nll_p(&self, p: &[f64], data: &Data, free_mu: bool, mu_fixed: f64) -> f64 {
+        if free_mu {
+            self.nll(p[0], &p[1..], data)
+        } else {
+            self.nll(mu_fixed, p, data)
+        }
     }
 
     /// Damped Newton minimisation of −ln L over θ (and μ ≥ 0 if `free_mu`)
@@ -489,31 +507,40 @@ impl CountingModel {
     /// J. Nocedal, S. J. Wright, "Numerical Optimization", 2nd ed. (2006),
     /// §3.1 (Armijo backtracking) and §3.4 (Newton with Hessian modification).
     fn newton(&self, start: Vec<f64>, data: &Data, free_mu: bool, mu_fixed: f64) -> Fit {
-        let split = |p: &[f64]| -> (f64, Vec<f64>) {
-            if free_mu {
-                (p[0], p[1..].to_vec())
-            } else {
-                (mu_fixed, p.to_vec())
-            }
-        };
+        let np = start.len();
         let mut p = start;
-        let (mu0, th0) = split(&p);
-        let mut f = self.nll(mu0, &th0, data);
+        let mut q = vec![0.0; np];
+        let mut g = vec![0.0; np];
+        let mut d = vec![0.0; np];
+        let mut dx = vec![0.0; np];
+        let mut h = vec![0.0; np * np];
+        let mut m = vec![0.0; np * np];
+        let mut f = self.nll_p(&p, data, free_mu, mu_fixed);
         for _ in 0..500 {
-            let (mu, th) = split(&p);
-            let (g, h) = self.derivatives(mu, &th, data, free_mu);
-            if g.norm() < 1e-10 || !g.iter().all(|v| v.is_finite()) {
+            {
+                let (mu, th) = if free_mu {
+                    (p[0], &p[1..])
+                } else {
+                    (mu_fixed, &p[..])
+                };
+                self.derivatives(mu, th, data, free_mu, &mut g, &mut h, &mut d);
+            }
+            let gnorm = g.iter().map(|v| v * v).sum::<f64>().sqrt();
+            if gnorm.is_nan() || gnorm.is_infinite() || gnorm < 1e-10 {
                 break;
             }
-            let scale = h.diagonal().amax().max(1.0);
+            let scale = (0..np).map(|j| h[j * np + j].abs()).fold(1.0, f64::max);
             let mut lambda = 0.0;
-            let mut step = None;
+            let mut found = false;
             for _ in 0..60 {
-                let m = &h + DMatrix::identity(h.nrows(), h.ncols()) * lambda;
-                if let Some(ch) = m.cholesky() {
-                    let dx = -ch.solve(&g);
-                    if g.dot(&dx) < 0.0 && dx.iter().all(|v| v.is_finite()) {
-                        step = Some(dx);
+                m.copy_from_slice(&h);
+                for j in 0..np {
+                    m[j * np + j] += lambda;
+                }
+                if cholesky_solve(&mut m, np, &g, &mut dx) {
+                    let slope: f64 = g.iter().zip(&dx).map(|(a, b)| a * b).sum();
+                    if slope < 0.0 && dx.iter().all(|v| v.is_finite()) {
+                        found = true;
                         break;
                     }
                 }
@@ -523,30 +550,48 @@ impl CountingModel {
                     lambda * 10.0
                 };
             }
-            let Some(dx) = step else { break };
-            let slope = g.dot(&dx);
+            if !found {
+                break;
+            }
+            let slope: f64 = g.iter().zip(&dx).map(|(a, b)| a * b).sum();
             let mut t = 1.0;
-            let mut accepted = None;
+            let mut fq = f64::INFINITY;
+            let mut accepted = false;
             for _ in 0..80 {
-                let q: Vec<f64> = p.iter().zip(dx.iter()).map(|(a, d)| a + t * d).collect();
-                let (mq, tq) = split(&q);
-                let fq = self.nll(mq, &tq, data);
+                for ((qj, pj), dj) in q.iter_mut().zip(&p).zip(&dx) {
+                    *qj = pj + t * dj;
+                }
+                fq = self.nll_p(&q, data, free_mu, mu_fixed);
                 if fq.is_finite() && fq <= f + 1e-4 * t * slope {
-                    accepted = Some((q, fq));
+                    accepted = true;
                     break;
                 }
                 t *= 0.5;
             }
-            let Some((q, fq)) = accepted else { break };
+            if !accepted {
+                break;
+            }
             let decrease = f - fq;
-            p = q;
+            std::mem::swap(&mut p, &mut q);
             f = fq;
             if decrease < 1e-13 * (1.0 + f.abs()) {
                 break;
             }
         }
-        let (mu, theta) = split(&p);
-        Fit { mu, theta, nll: f }
+        if free_mu {
+            let theta = p[1..].to_vec();
+            Fit {
+                mu: p[0],
+                theta,
+                nll: f,
+            }
+        } else {
+            Fit {
+                mu: mu_fixed,
+                theta: p,
+                nll: f,
+            }
+        }
     }
 
     /// A feasible starting point for θ: the global observables if allowed,
@@ -670,6 +715,49 @@ impl CountingModel {
         let free = self.fit_free(data)?;
         self.q_tilde_with(mu, data, &free)
     }
+}
+
+/// Solves A x = −g for a symmetric positive definite A (row-major n × n in
+/// `m`, overwritten by its Cholesky factor L with A = L Lᵀ); returns false
+/// when A is not positive definite.
+///
+/// # References
+/// G. H. Golub, C. F. Van Loan, "Matrix Computations", 4th ed. (2013),
+/// Algorithm 4.2.1 (Cholesky), then forward and back substitution.
+fn cholesky_solve(m: &mut [f64], n: usize, g: &[f64], x: &mut [f64]) -> bool {
+    for j in 0..n {
+        let mut s = m[j * n + j];
+        for k in 0..j {
+            s -= m[j * n + k] * m[j * n + k];
+        }
+        if s.is_nan() || s <= 0.0 {
+            return false;
+        }
+        let l = s.sqrt();
+        m[j * n + j] = l;
+        for i in j + 1..n {
+            let mut t = m[i * n + j];
+            for k in 0..j {
+                t -= m[i * n + k] * m[j * n + k];
+            }
+            m[i * n + j] = t / l;
+        }
+    }
+    for i in 0..n {
+        let mut t = -g[i];
+        for k in 0..i {
+            t -= m[i * n + k] * x[k];
+        }
+        x[i] = t / m[i * n + i];
+    }
+    for i in (0..n).rev() {
+        let mut t = x[i];
+        for k in i + 1..n {
+            t -= m[k * n + i] * x[k];
+        }
+        x[i] = t / m[i * n + i];
+    }
+    true
 }
 
 /// Half the Poisson deviance: ν − n + n ln(n/ν), the −ln of the Poisson
