@@ -158,6 +158,28 @@ fn expected_limit_b50_sigma7_gaussian() {
 }
 
 #[test]
+fn expected_limit_b50_sigma7_on_off() {
+    // Published: 19.7 events (REFERENCES.md §2, K. Cranmer's notes, on/off
+    // model). Bands computed with scipy 1.17.1 for the on/off likelihood
+    // (τ = b/σ_b², minimize_scalar + brentq): 10.5008, 14.1311, 19.7090,
+    // 27.6677, 37.6025 events.
+    let o = LimitOptions {
+        constraint: BackgroundConstraint::Poisson,
+        ..LimitOptions::default()
+    };
+    let l = event_limit(50, 50.0, 7.0, &o).unwrap();
+    assert!((l.mu_up_expected[2] - 19.7).abs() < 0.05);
+    let want = [10.5008, 14.1311, 19.7090, 27.6677, 37.6025];
+    for (got, w) in l.mu_up_expected.iter().zip(want) {
+        assert!((got - w).abs() < 2e-3, "{got} vs {w}");
+    }
+    // The on/off constraint takes independent regions only.
+    let rs = [region(5, 5.0, 1.0, 1.0), region(5, 5.0, 1.0, 1.0)];
+    let c = DMatrix::from_row_slice(2, 2, &[1.0, 0.0, 0.0, 1.0]);
+    is_invalid(combined_limit(&rs, Some(&c), &o), "independent regions");
+}
+
+#[test]
 fn toys_agree_with_exact_for_known_background() {
     let n_toys = 4000;
     // n = 3, b = 2: exact 5.98346 (scipy 1.17.1, see above).
@@ -217,26 +239,34 @@ fn toys_bit_identical_on_one_and_two_threads() {
         signal: 4.0,
         signal_rel_unc: 0.1,
     };
-    let o = opts(
-        0.95,
-        Method::Toys {
-            n_toys: 300,
-            seed: 42,
-        },
-    );
-    let run = |threads| {
-        rayon::ThreadPoolBuilder::new()
-            .num_threads(threads)
-            .build()
-            .unwrap()
-            .install(|| region_limit(&r, &o).unwrap())
-    };
-    let one = run(1);
-    let two = run(2);
-    assert_eq!(one.mu_up_observed.to_bits(), two.mu_up_observed.to_bits());
-    assert_eq!(one.cls_mu1.to_bits(), two.cls_mu1.to_bits());
-    for (a, b) in one.mu_up_expected.iter().zip(&two.mu_up_expected) {
-        assert_eq!(a.to_bits(), b.to_bits());
+    for constraint in [
+        BackgroundConstraint::Gaussian,
+        BackgroundConstraint::Poisson,
+    ] {
+        let o = LimitOptions {
+            constraint,
+            ..opts(
+                0.95,
+                Method::Toys {
+                    n_toys: 300,
+                    seed: 42,
+                },
+            )
+        };
+        let run = |threads| {
+            rayon::ThreadPoolBuilder::new()
+                .num_threads(threads)
+                .build()
+                .unwrap()
+                .install(|| region_limit(&r, &o).unwrap())
+        };
+        let one = run(1);
+        let two = run(2);
+        assert_eq!(one.mu_up_observed.to_bits(), two.mu_up_observed.to_bits());
+        assert_eq!(one.cls_mu1.to_bits(), two.cls_mu1.to_bits());
+        for (a, b) in one.mu_up_expected.iter().zip(&two.mu_up_expected) {
+            assert_eq!(a.to_bits(), b.to_bits());
+        }
     }
 }
 
@@ -262,6 +292,14 @@ fn limit_grows_with_background_uncertainty_and_observed_count() {
     };
     let a = region_limit(&region(20, 20.0, 1.0, 5.0), &ln).unwrap();
     let b = region_limit(&region(20, 20.0, 5.0, 5.0), &ln).unwrap();
+    assert!(b.mu_up_observed > a.mu_up_observed);
+    // Poisson (on/off) constraint: likewise.
+    let onoff = LimitOptions {
+        constraint: BackgroundConstraint::Poisson,
+        ..o
+    };
+    let a = region_limit(&region(20, 20.0, 1.0, 5.0), &onoff).unwrap();
+    let b = region_limit(&region(20, 20.0, 5.0, 5.0), &onoff).unwrap();
     assert!(b.mu_up_observed > a.mu_up_observed);
 }
 

@@ -28,6 +28,8 @@ pub enum ConstraintArg {
     Gaussian,
     /// Log-normal.
     Lognormal,
+    /// Poisson auxiliary measurement (on/off), τ = b/σ_b²; independent regions.
+    Poisson,
 }
 
 /// Arguments of `recoil limit`: CLs upper limits on the signal strength μ,
@@ -114,6 +116,7 @@ impl LimitArgs {
             constraint: match self.constraint {
                 ConstraintArg::Gaussian => BackgroundConstraint::Gaussian,
                 ConstraintArg::Lognormal => BackgroundConstraint::LogNormal,
+                ConstraintArg::Poisson => BackgroundConstraint::Poisson,
             },
         })
     }
@@ -305,6 +308,7 @@ fn method_text(opts: &LimitOptions) -> String {
     let c = match opts.constraint {
         BackgroundConstraint::Gaussian => "Gaussian (truncated)",
         BackgroundConstraint::LogNormal => "log-normal",
+        BackgroundConstraint::Poisson => "Poisson auxiliary measurement (on/off)",
     };
     format!("method: {m}; CL = {}; background constraint: {c}", opts.cl)
 }

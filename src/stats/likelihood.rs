@@ -12,18 +12,25 @@
 //! root of the covariance C = L Lᵀ otherwise):
 //! - Gaussian constraint: b_i(η) = b_i + (Lη)_i, truncated to b_i(η) ≥ 0;
 //! - log-normal constraint: b_i(η) = b_i exp((L'η)_i) with L' a square root
-//!   of C'_ij = ln(1 + C_ij/(b_i b_j)), so that b(η) has covariance C.
+//!   of C'_ij = ln(1 + C_ij/(b_i b_j)), so that b(η) has covariance C;
+//! - Poisson (on/off) constraint, independent regions: b_i(η) = b_i + σ_i η_i
+//!   as for the Gaussian, but the constraint term is that of an auxiliary
+//!   count m_i ~ Poisson(τ_i b_i(η)), τ_i = b_i/σ_i², with m_i = τ_i(b_i +
+//!   σ_i a_i) for global observable a_i (Li & Ma, ApJ 272 (1983) 317).
 //!
 //! A relative signal uncertainty f_i adds one nuisance ξ_i per region (not
 //! correlated between regions, as for Monte Carlo statistics):
 //! s_i(ξ) = s_i (1 + f_i ξ_i) truncated to ≥ 0, or s_i exp(w_i ξ_i),
 //! w_i = √ln(1 + f_i²), for the log-normal choice.
 //!
-//! Each nuisance θ_k has a unit Gaussian constraint around its global
+//! Each other nuisance θ_k has a unit Gaussian constraint around its global
 //! observable a_k (nominal 0). The negative log-likelihood, up to a constant,
 //! is
 //!
-//! −ln L(μ, θ) = Σ_i [ν_i − n_i + n_i ln(n_i/ν_i)] + ½ Σ_k (θ_k − a_k)².
+//! −ln L(μ, θ) = Σ_i [ν_i − n_i + n_i ln(n_i/ν_i)] + ½ Σ_k (θ_k − a_k)²
+//!
+//! with, for the Poisson constraint, ½(θ_k − a_k)² replaced by
+//! τb − m + m ln(m/(τb)).
 //!
 //! # References
 //! G. Cowan, K. Cranmer, E. Gross, O. Vitells, EPJC 71 (2011) 1554,
@@ -67,6 +74,8 @@ pub struct CountingModel {
     sig_index: Vec<Option<usize>>,
     /// Per region: signal width f_i (Gaussian) or w_i (log-normal).
     sig_width: Vec<f64>,
+    /// Poisson constraint: per background nuisance (b_i, σ_i, τ_i).
+    aux: Vec<(f64, f64, f64)>,
     n_theta: usize,
 }
 
@@ -164,6 +173,22 @@ impl CountingModel {
                 regions.iter().map(|r| r.background_unc * r.background_unc),
             )),
         };
+        if constraint == BackgroundConstraint::Poisson {
+            if covariance.is_some() {
+                return Err(StatsError::InvalidInput(
+                    "the Poisson (on/off) background constraint takes independent regions; a covariance matrix needs the Gaussian or log-normal constraint".into(),
+                ));
+            }
+            for (i, r) in regions.iter().enumerate() {
+                if r.background <= 0.0 && r.background_unc > 0.0 {
+                    return Err(StatsError::InvalidInput(format!(
+                        "region {}: a Poisson (on/off) background constraint needs background > 0 events when its uncertainty is > 0, got background {} events",
+                        i + 1,
+                        r.background
+                    )));
+                }
+            }
+        }
         if constraint == BackgroundConstraint::LogNormal {
             for (i, b) in background.iter().enumerate() {
                 if *b <= 0.0 && cov[(i, i)] > 0.0 {
@@ -175,7 +200,9 @@ impl CountingModel {
             }
         }
         let full = match constraint {
-            BackgroundConstraint::Gaussian => psd_sqrt(&cov, "background covariance")?,
+            BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
+                psd_sqrt(&cov, "background covariance")?
+            }
             BackgroundConstraint::LogNormal => {
                 let rel = DMatrix::from_fn(n, n, |i, j| {
                     if background[i] > 0.0 && background[j] > 0.0 {
@@ -200,14 +227,29 @@ impl CountingModel {
                 sig_index[i] = Some(n_theta);
                 n_theta += 1;
                 sig_width[i] = match constraint {
-                    BackgroundConstraint::Gaussian => r.signal_rel_unc,
+                    BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
+                        r.signal_rel_unc
+                    }
                     BackgroundConstraint::LogNormal => {
                         (1.0 + r.signal_rel_unc * r.signal_rel_unc).ln().sqrt()
                     }
                 };
             }
         }
+        // Independent regions: column k moves exactly one region.
+        let aux = if constraint == BackgroundConstraint::Poisson {
+            (0..bkg_map.ncols())
+                .map(|k| {
+                    let i = (0..n).find(|&i| bkg_map[(i, k)] != 0.0).unwrap_or(0);
+                    let sd = bkg_map[(i, k)];
+                    (background[i], sd, background[i] / (sd * sd))
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
         Ok(Self {
+            aux,
             background,
             signal: regions.iter().map(|r| r.signal).collect(),
             observed: regions.iter().map(|r| r.observed as f64).collect(),
@@ -267,7 +309,7 @@ impl CountingModel {
             shift += self.bkg_map[(i, k)] * t;
         }
         let (b, s) = match self.constraint {
-            BackgroundConstraint::Gaussian => {
+            BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
                 let s = match self.sig_index[i] {
                     Some(k) => self.signal[i] * (1.0 + self.sig_width[i] * theta[k]),
                     None => self.signal[i],
@@ -290,6 +332,54 @@ impl CountingModel {
         self.parts(i, mu, theta)
     }
 
+    /// Constraint term of nuisance k at θ_k for global observable a_k, with
+    /// its first and second derivatives in θ_k.
+    ///
+    /// # Formula
+    /// Unit Gaussian: ½(θ − a)², θ − a, 1. Poisson (on/off), b = b_i + σθ,
+    /// m = τ(b_i + σa): τb − m + m ln(m/(τb)), σ(τ − m/b), mσ²/b².
+    ///
+    /// # References
+    /// T.-P. Li, Y.-Q. Ma, ApJ 272 (1983) 317 (on/off likelihood);
+    /// S. Baker, R. D. Cousins, NIM 221 (1984) 437 (deviance form).
+    fn constraint_term(&self, k: usize, t: f64, a: f64) -> (f64, f64, f64) {
+        match self.aux.get(k) {
+            Some(&(b0, sd, tau)) => {
+                let b = b0 + sd * t;
+                let m = (tau * (b0 + sd * a)).max(0.0);
+                let value = poisson_deviance_half(m, tau * b);
+                if b <= 0.0 {
+                    let d1 = if m > 0.0 { f64::NEG_INFINITY } else { sd * tau };
+                    return (value, d1, f64::INFINITY);
+                }
+                (value, sd * (tau - m / b), m * sd * sd / (b * b))
+            }
+            None => (0.5 * (t - a) * (t - a), t - a, 1.0),
+        }
+    }
+
+    /// Draws the global observable of nuisance k for a pseudo-experiment
+    /// generated at θ_k: a ~ N(θ_k, 1), or for the Poisson constraint the
+    /// auxiliary count m ~ Poisson(τ b(θ_k)) mapped back to a = (m/τ − b)/σ.
+    pub fn sample_global<R: rand::Rng + ?Sized>(&self, k: usize, t: f64, rng: &mut R) -> f64 {
+        use rand_distr::{Distribution, Poisson, StandardNormal};
+        match self.aux.get(k) {
+            Some(&(b0, sd, tau)) => {
+                let lam = tau * (b0 + sd * t);
+                let m = if lam > 0.0 {
+                    Poisson::new(lam).map_or(lam, |p| p.sample(rng))
+                } else {
+                    0.0
+                };
+                (m / tau - b0) / sd
+            }
+            None => {
+                let z: f64 = StandardNormal.sample(rng);
+                t + z
+            }
+        }
+    }
+
     /// −ln L(μ, θ) for `data`; +∞ outside the allowed region (a negative
     /// expected background or signal, or ν = 0 with n > 0).
     pub fn nll(&self, mu: f64, theta: &[f64], data: &Data) -> f64 {
@@ -297,8 +387,8 @@ impl CountingModel {
             return f64::INFINITY;
         }
         let mut sum = 0.0;
-        for (t, a) in theta.iter().zip(&data.globals) {
-            sum += 0.5 * (t - a) * (t - a);
+        for (k, (t, a)) in theta.iter().zip(&data.globals).enumerate() {
+            sum += self.constraint_term(k, *t, *a).0;
         }
         for (i, &n) in data.counts.iter().enumerate() {
             let (nu, b, s) = self.parts(i, mu, theta);
@@ -314,17 +404,21 @@ impl CountingModel {
     /// with exactly one nuisance), at fixed μ.
     fn score_one(&self, mu: f64, t: f64, data: &Data) -> f64 {
         let theta = [t];
-        let mut g = t - data.globals[0];
+        let mut g = self.constraint_term(0, t, data.globals[0]).1;
         for (i, &n) in data.counts.iter().enumerate() {
             let (nu, b, s) = self.parts(i, mu, &theta);
             let dnu = if self.bkg_map.ncols() == 1 {
                 match self.constraint {
-                    BackgroundConstraint::Gaussian => self.bkg_map[(i, 0)],
+                    BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
+                        self.bkg_map[(i, 0)]
+                    }
                     BackgroundConstraint::LogNormal => b * self.bkg_map[(i, 0)],
                 }
             } else if self.sig_index[i].is_some() {
                 match self.constraint {
-                    BackgroundConstraint::Gaussian => mu * self.signal[i] * self.sig_width[i],
+                    BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
+                        mu * self.signal[i] * self.sig_width[i]
+                    }
                     BackgroundConstraint::LogNormal => mu * s * self.sig_width[i],
                 }
             } else {
@@ -428,8 +522,9 @@ impl CountingModel {
         g.fill(0.0);
         h.fill(0.0);
         for k in 0..self.n_theta {
-            g[off + k] = theta[k] - data.globals[k];
-            h[(off + k) * np + off + k] = 1.0;
+            let (_, d1, d2) = self.constraint_term(k, theta[k], data.globals[k]);
+            g[off + k] = d1;
+            h[(off + k) * np + off + k] = d2;
         }
         let log_normal = self.constraint == BackgroundConstraint::LogNormal;
         for (i, &n) in data.counts.iter().enumerate() {

@@ -68,6 +68,9 @@ pub enum BackgroundConstraint {
     Gaussian,
     /// Log-normal.
     LogNormal,
+    /// Poisson auxiliary measurement (the on/off problem): m ~ Poisson(τ b)
+    /// with τ = b/σ_b², so that b is known to ±σ_b; independent regions only.
+    Poisson,
 }
 
 /// One counting region.

@@ -8,7 +8,7 @@
 //! of threads. The same toy indices are reused at every μ (common random
 //! numbers), which smooths CLs(μ) for the root-finder.
 
-use rand_distr::{Distribution, Poisson, StandardNormal};
+use rand_distr::{Distribution, Poisson};
 use rand_pcg::Pcg64;
 use rayon::prelude::*;
 
@@ -126,10 +126,8 @@ impl<'a> Toys<'a> {
         let globals: Vec<f64> = generator
             .theta
             .iter()
-            .map(|t| {
-                let z: f64 = StandardNormal.sample(&mut rng);
-                t + z
-            })
+            .enumerate()
+            .map(|(k, t)| self.model.sample_global(k, *t, &mut rng))
             .collect();
         let mut counts = Vec::with_capacity(self.model.n_regions());
         for i in 0..self.model.n_regions() {
