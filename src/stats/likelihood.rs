@@ -199,20 +199,21 @@ impl CountingModel {
                 }
             }
         }
-        let full = match constraint {
-            BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
-                psd_sqrt(&cov, "background covariance")?
-            }
-            BackgroundConstraint::LogNormal => {
-                let rel = DMatrix::from_fn(n, n, |i, j| {
-                    if background[i] > 0.0 && background[j] > 0.0 {
-                        (1.0 + cov[(i, j)] / (background[i] * background[j])).ln()
-                    } else {
-                        0.0
-                    }
-                });
-                psd_sqrt(&rel, "log-normal background covariance")?
-            }
+        let target = match constraint {
+            BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => cov,
+            BackgroundConstraint::LogNormal => DMatrix::from_fn(n, n, |i, j| {
+                if background[i] > 0.0 && background[j] > 0.0 {
+                    (1.0 + cov[(i, j)] / (background[i] * background[j])).ln()
+                } else {
+                    0.0
+                }
+            }),
+        };
+        // Independent regions: the square root of a diagonal matrix is exact.
+        let full = if covariance.is_none() {
+            DMatrix::from_diagonal(&target.diagonal().map(|v| v.max(0.0).sqrt()))
+        } else {
+            psd_sqrt(&target, "background covariance")?
         };
         // Keep only columns that move some background.
         let cols: Vec<usize> = (0..n)
@@ -595,8 +596,9 @@ impl CountingModel {
     /// Step Δ = −(H + λ I)⁻¹ g with λ ≥ 0 raised until H + λ I has a
     /// Cholesky factor and Δ is a descent direction; step length halved
     /// until the point is allowed and satisfies the Armijo condition
-    /// f(p + tΔ) ≤ f(p) + 10⁻⁴ t gᵀΔ. Stops when the decrease is below
-    /// 10⁻¹³ (1 + |f|) or the gradient norm below 10⁻¹⁰.
+    /// f(p + tΔ) ≤ f(p) + 10⁻⁴ t gᵀΔ. Stops when the decrease or the Newton
+    /// decrement −gᵀΔ/2 is below 10⁻¹³ (1 + |f|), or the gradient norm below
+    /// 10⁻¹⁰.
     ///
     /// # References
     /// J. Nocedal, S. J. Wright, "Numerical Optimization", 2nd ed. (2006),
@@ -649,6 +651,10 @@ impl CountingModel {
                 break;
             }
             let slope: f64 = g.iter().zip(&dx).map(|(a, b)| a * b).sum();
+            // Newton decrement: −gᵀΔ/2 estimates f − min f; stop below 10⁻¹³.
+            if -0.5 * slope < 1e-13 * (1.0 + f.abs()) {
+                break;
+            }
             let mut t = 1.0;
             let mut fq = f64::INFINITY;
             let mut accepted = false;

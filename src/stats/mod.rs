@@ -229,6 +229,14 @@ fn warnings(
             }
         }
     }
+    if let Method::Toys { n_toys, .. } = opts.method
+        && (n_toys as f64) * (1.0 - opts.cl) < 50.0
+    {
+        out.push(format!(
+            "{n_toys} pseudo-experiments give fewer than 50 in the tail at CLs = {:.3}; the limit has a large Monte Carlo uncertainty, consider more toys",
+            1.0 - opts.cl
+        ));
+    }
     if let Some(c) = covariance {
         for (i, r) in regions.iter().enumerate() {
             if i < c.nrows() && i < c.ncols() {
