@@ -64,19 +64,30 @@ fn poisson_pmf(n: u64, s: f64) -> f64 {
 
 #[test]
 fn pdg_table_toys_within_mc_uncertainty() {
-    let n_toys = 4000;
-    for n in [0u64, 2, 5] {
-        let want = PDG_95[n as usize];
-        let l = event_limit(n, 0.0, 0.0, &opts(0.95, Method::Toys { n_toys, seed: 7 })).unwrap();
-        // σ(CLs) = √(α(1−α)/N) at the limit; σ(s) = σ(CLs)/|dCLs/ds|.
-        let sigma_s = (0.05f64 * 0.95 / n_toys as f64).sqrt() / poisson_pmf(n, want);
-        let tol = 4.0 * sigma_s + 0.005;
-        assert!(
-            (l.mu_up_observed - want).abs() < tol,
-            "n = {n}: toys {} vs table {want} (tolerance {tol})",
-            l.mu_up_observed
-        );
-        assert!(l.cls_mu1_mc_unc.is_some());
+    let n_toys = 3000;
+    for (cl, table) in [(0.90, PDG_90), (0.95, PDG_95)] {
+        let alpha = 1.0 - cl;
+        for (n, want) in table.iter().enumerate() {
+            let n = n as u64;
+            let o = opts(
+                cl,
+                Method::Toys {
+                    n_toys,
+                    seed: 7 + n,
+                },
+            );
+            let l = event_limit(n, 0.0, 0.0, &o).unwrap();
+            // σ(CLs) = √(α(1−α)/N) at the limit; σ(s) = σ(CLs)/|dCLs/ds|
+            // with dCLs/ds = −P(k = n | s) for b = 0 (closed form).
+            let sigma_s = (alpha * (1.0 - alpha) / n_toys as f64).sqrt() / poisson_pmf(n, *want);
+            let tol = 4.0 * sigma_s + 0.005;
+            assert!(
+                (l.mu_up_observed - want).abs() < tol,
+                "n = {n}, CL = {cl}: toys {} vs table {want} (tolerance {tol})",
+                l.mu_up_observed
+            );
+            assert!(l.cls_mu1_mc_unc.is_some());
+        }
     }
 }
 
