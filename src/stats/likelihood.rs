@@ -606,12 +606,13 @@ impl CountingModel {
     fn newton(&self, start: Vec<f64>, data: &Data, free_mu: bool, mu_fixed: f64) -> Fit {
         let np = start.len();
         let mut p = start;
-        let mut q = vec![0.0; np];
-        let mut g = vec![0.0; np];
-        let mut d = vec![0.0; np];
-        let mut dx = vec![0.0; np];
-        let mut h = vec![0.0; np * np];
-        let mut m = vec![0.0; np * np];
+        // One work buffer: q, g, d, Δ (np each), H and its factor (np² each).
+        let mut work = vec![0.0; 4 * np + 2 * np * np];
+        let (q, rest) = work.split_at_mut(np);
+        let (g, rest) = rest.split_at_mut(np);
+        let (d, rest) = rest.split_at_mut(np);
+        let (dx, rest) = rest.split_at_mut(np);
+        let (h, m) = rest.split_at_mut(np * np);
         let mut f = self.nll_p(&p, data, free_mu, mu_fixed);
         for _ in 0..500 {
             {
@@ -620,7 +621,7 @@ impl CountingModel {
                 } else {
                     (mu_fixed, &p[..])
                 };
-                self.derivatives(mu, th, data, free_mu, &mut g, &mut h, &mut d);
+                self.derivatives(mu, th, data, free_mu, g, h, d);
             }
             let gnorm = g.iter().map(|v| v * v).sum::<f64>().sqrt();
             if gnorm.is_nan() || gnorm.is_infinite() || gnorm < 1e-10 {
@@ -630,12 +631,12 @@ impl CountingModel {
             let mut lambda = 0.0;
             let mut found = false;
             for _ in 0..60 {
-                m.copy_from_slice(&h);
+                m.copy_from_slice(h);
                 for j in 0..np {
                     m[j * np + j] += lambda;
                 }
-                if cholesky_solve(&mut m, np, &g, &mut dx) {
-                    let slope: f64 = g.iter().zip(&dx).map(|(a, b)| a * b).sum();
+                if cholesky_solve(m, np, g, dx) {
+                    let slope: f64 = g.iter().zip(dx.iter()).map(|(a, b)| a * b).sum();
                     if slope < 0.0 && dx.iter().all(|v| v.is_finite()) {
                         found = true;
                         break;
@@ -650,7 +651,7 @@ impl CountingModel {
             if !found {
                 break;
             }
-            let slope: f64 = g.iter().zip(&dx).map(|(a, b)| a * b).sum();
+            let slope: f64 = g.iter().zip(dx.iter()).map(|(a, b)| a * b).sum();
             // Newton decrement: −gᵀΔ/2 estimates f − min f; stop below 10⁻¹³.
             if -0.5 * slope < 1e-13 * (1.0 + f.abs()) {
                 break;
@@ -659,10 +660,10 @@ impl CountingModel {
             let mut fq = f64::INFINITY;
             let mut accepted = false;
             for _ in 0..80 {
-                for ((qj, pj), dj) in q.iter_mut().zip(&p).zip(&dx) {
+                for ((qj, pj), dj) in q.iter_mut().zip(&p).zip(dx.iter()) {
                     *qj = pj + t * dj;
                 }
-                fq = self.nll_p(&q, data, free_mu, mu_fixed);
+                fq = self.nll_p(q, data, free_mu, mu_fixed);
                 if fq.is_finite() && fq <= f + 1e-4 * t * slope {
                     accepted = true;
                     break;
@@ -673,7 +674,7 @@ impl CountingModel {
                 break;
             }
             let decrease = f - fq;
-            std::mem::swap(&mut p, &mut q);
+            p.copy_from_slice(q);
             f = fq;
             if decrease < 1e-13 * (1.0 + f.abs()) {
                 break;
@@ -699,18 +700,21 @@ impl CountingModel {
     /// else the nominal point, else one unit up in every background
     /// nuisance.
     fn start_theta(&self, mu: f64, data: &Data) -> Vec<f64> {
-        let mut candidates = vec![data.globals.clone(), vec![0.0; self.n_theta]];
-        let mut up = vec![0.0; self.n_theta];
+        if self.nll(mu, &data.globals, data).is_finite() {
+            return data.globals.clone();
+        }
+        let zeros = vec![0.0; self.n_theta];
+        if self.nll(mu, &zeros, data).is_finite() {
+            return zeros;
+        }
+        let mut up = zeros;
         for v in up.iter_mut().take(self.bkg_map.ncols()) {
             *v = 1.0;
         }
-        candidates.push(up);
-        for c in &candidates {
-            if self.nll(mu, c, data).is_finite() {
-                return c.clone();
-            }
+        if self.nll(mu, &up, data).is_finite() {
+            return up;
         }
-        candidates.swap_remove(1)
+        vec![0.0; self.n_theta]
     }
 
     /// Conditional fit: θ̂̂(μ) minimising −ln L at fixed μ ≥ 0.
