@@ -428,7 +428,11 @@ impl CountingModel {
             if dnu == 0.0 {
                 continue;
             }
-            if n > 0.0 && nu <= 0.0 {
+            if n <= 0.0 {
+                g += dnu;
+                continue;
+            }
+            if nu <= 0.0 {
                 return f64::NEG_INFINITY;
             }
             g += (1.0 - n / nu) * dnu;

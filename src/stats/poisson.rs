@@ -40,10 +40,43 @@ pub fn poisson_cdf(n: u64, lambda: f64) -> f64 {
 /// 435, hep-ex/9902006.
 pub fn exact_cls(n: u64, s: f64, b: f64) -> f64 {
     let clb = poisson_cdf(n, b);
-    if clb <= 0.0 {
-        return 1.0;
+    if clb > 1e-250 {
+        return (poisson_cdf(n, s + b) / clb).min(1.0);
     }
-    (poisson_cdf(n, s + b) / clb).min(1.0)
+    // Far lower tail: the ratio of logarithms stays finite.
+    (ln_poisson_cdf_lower_tail(n, s + b) - ln_poisson_cdf_lower_tail(n, b))
+        .exp()
+        .min(1.0)
+}
+
+/// ln P(k ≤ n | λ) for n well below λ, where P itself underflows.
+///
+/// # Formula
+/// ln P = ln p(n) + ln Σ_{j≥0} p(n−j)/p(n), with ln p(k) = k ln λ − λ −
+/// ln Γ(k+1) and p(k−1)/p(k) = k/λ < 1, summed until the terms fall below
+/// 10⁻¹⁷ of the sum.
+///
+/// # Units
+/// λ in events.
+///
+/// # References
+/// Direct summation of the Poisson probabilities (common practice, no
+/// single source).
+fn ln_poisson_cdf_lower_tail(n: u64, lambda: f64) -> f64 {
+    let nf = n as f64;
+    let ln_pn = nf * lambda.ln() - lambda - statrs::function::gamma::ln_gamma(nf + 1.0);
+    let mut sum = 1.0;
+    let mut term = 1.0;
+    let mut k = n;
+    while k > 0 {
+        term *= k as f64 / lambda;
+        sum += term;
+        if term < 1e-17 * sum {
+            break;
+        }
+        k -= 1;
+    }
+    ln_pn + sum.ln()
 }
 
 /// Exact CLs upper limit on the signal count: the s with CLs(s) = α.
@@ -75,13 +108,23 @@ pub fn exact_signal_limit(n: u64, b: f64, alpha: f64) -> Result<f64, StatsError>
 /// # Units
 /// λ in events; p a probability in (0, 1).
 pub fn poisson_quantile(lambda: f64, p: f64) -> u64 {
-    let mut n = 0u64;
-    // The quantile lies below λ + 40√λ + 40 for any p < 1 − 1e-300.
-    let cap = (lambda + 40.0 * lambda.sqrt() + 40.0) as u64;
-    while n < cap && poisson_cdf(n, lambda) < p {
-        n += 1;
+    // The quantile lies below λ + 40√λ + 40 for any p < 1 − 1e-300;
+    // bisection on n keeps the cost logarithmic for large λ.
+    let mut lo = 0u64;
+    let mut hi = (lambda + 40.0 * lambda.sqrt() + 40.0) as u64;
+    if poisson_cdf(lo, lambda) >= p {
+        return 0;
     }
-    n
+    // Invariant: cdf(lo) < p ≤ cdf(hi) (or hi is the cap).
+    while hi - lo > 1 {
+        let mid = lo + (hi - lo) / 2;
+        if poisson_cdf(mid, lambda) >= p {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    hi
 }
 
 /// Expected exact upper limits on the signal count at −2σ … +2σ.
@@ -118,9 +161,25 @@ mod tests {
     }
 
     #[test]
+    fn far_tail_ratio_is_exp_minus_s() {
+        // n = 0: CLs = e^{−s} for any b (REFERENCES.md §1), even when
+        // P(0 | b) = e^{−10⁶} underflows.
+        assert!((exact_cls(0, 2.0, 1e6) - (-2.0f64).exp()).abs() < 1e-12);
+        // n = 1, b = 10⁴: CLs = e^{−s}(1 + s + b)/(1 + b) (closed form).
+        let want = (-3.0f64).exp() * (1.0 + 3.0 + 1e4) / (1.0 + 1e4);
+        assert!((exact_cls(1, 3.0, 1e4) / want - 1.0).abs() < 1e-10);
+    }
+
+    #[test]
     fn quantile_of_poisson() {
         // Median of Poisson(1) is 1: P(0) = 0.368 < 0.5 ≤ P(≤1) = 0.736 (closed form).
         assert_eq!(poisson_quantile(1.0, 0.5), 1);
         assert_eq!(poisson_quantile(0.0, 0.9), 0);
+        // Poisson(10): P(≤ 9) = 0.4579, P(≤ 10) = 0.5830 (scipy 1.17.1
+        // poisson.cdf), so the median is 10.
+        assert_eq!(poisson_quantile(10.0, 0.5), 10);
+        // Large λ stays fast and near λ.
+        let q = poisson_quantile(1e10, 0.5);
+        assert!((q as f64 - 1e10).abs() < 2.0);
     }
 }

@@ -7,6 +7,13 @@
 //! after an ordered collection, so results are bit-identical on any number
 //! of threads. The same toy indices are reused at every μ (common random
 //! numbers), which smooths CLs(μ) for the root-finder.
+//!
+//! Both hypotheses are generated with the nuisances fitted to the
+//! observation (θ̂̂(μ) and θ̂̂(0)), the LHC frequentist convention. The
+//! expected bands are therefore post-fit: they follow the observation's
+//! nuisance pulls, unlike the asymptotic bands, which use the nominal
+//! (pre-fit) Asimov data set. With a strongly pulled background (e.g. n = 0
+//! far below b with a large σ_b) the two differ markedly.
 
 use rand_distr::{Distribution, Poisson};
 use rand_pcg::Pcg64;
