@@ -315,6 +315,29 @@ fn limit_grows_with_background_uncertainty_and_observed_count() {
 }
 
 #[test]
+fn limit_grows_with_signal_uncertainty() {
+    // A less certain signal cannot give a stronger limit (common practice,
+    // no source); the log-normal signal term keeps CLs → 0 at large μ.
+    let o = LimitOptions::default();
+    let mut last = 0.0;
+    for f in [0.0, 0.1, 0.3, 0.6] {
+        let r = RegionCounts {
+            signal_rel_unc: f,
+            ..region(12, 10.0, 2.0, 4.0)
+        };
+        let l = region_limit(&r, &o).unwrap();
+        assert!(l.mu_up_observed > last, "f = {f}");
+        last = l.mu_up_observed;
+    }
+    let r = RegionCounts {
+        signal_rel_unc: 0.3,
+        ..region(4, 1.0, 2.0, 3.0)
+    };
+    let model = CountingModel::new(&[r], None, BackgroundConstraint::Gaussian).unwrap();
+    assert!(Asymptotic::new(&model).unwrap().cls(100.0).unwrap().cls < 1e-6);
+}
+
+#[test]
 fn cls_decreases_in_mu() {
     let r = RegionCounts {
         observed: 12,

@@ -141,8 +141,10 @@ struct Row {
 }
 
 fn row(name: &str, signal: f64, limit: Limit, lumi: Option<f64>) -> anyhow::Result<Row> {
-    let s95 = limit.mu_up_observed * signal;
-    let s95_exp = limit.mu_up_expected.map(|m| m * signal);
+    // No sensitivity (μ_up = +∞) stays +∞ events, also for zero signal.
+    let events = |mu: f64| if mu.is_infinite() { mu } else { mu * signal };
+    let s95 = events(limit.mu_up_observed);
+    let s95_exp = limit.mu_up_expected.map(events);
     let (obs, exp) = match lumi {
         Some(l) => {
             let mut e = [0.0; 5];

@@ -19,9 +19,10 @@
 //!   σ_i a_i) for global observable a_i (Li & Ma, ApJ 272 (1983) 317).
 //!
 //! A relative signal uncertainty f_i adds one nuisance ξ_i per region (not
-//! correlated between regions, as for Monte Carlo statistics):
-//! s_i(ξ) = s_i (1 + f_i ξ_i) truncated to ≥ 0, or s_i exp(w_i ξ_i),
-//! w_i = √ln(1 + f_i²), for the log-normal choice.
+//! correlated between regions, as for Monte Carlo statistics), always
+//! log-normal: s_i(ξ) = s_i exp(w_i ξ_i), w_i = √ln(1 + f_i²). (A truncated
+//! Gaussian would let the fit switch the signal off at a finite penalty
+//! ½(1/f)², so CLs would not fall below a floor at large μ.)
 //!
 //! Each other nuisance θ_k has a unit Gaussian constraint around its global
 //! observable a_k (nominal 0). The negative log-likelihood, up to a constant,
@@ -227,14 +228,7 @@ impl CountingModel {
             if r.signal_rel_unc > 0.0 && r.signal > 0.0 {
                 sig_index[i] = Some(n_theta);
                 n_theta += 1;
-                sig_width[i] = match constraint {
-                    BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
-                        r.signal_rel_unc
-                    }
-                    BackgroundConstraint::LogNormal => {
-                        (1.0 + r.signal_rel_unc * r.signal_rel_unc).ln().sqrt()
-                    }
-                };
+                sig_width[i] = (1.0 + r.signal_rel_unc * r.signal_rel_unc).ln().sqrt();
             }
         }
         // Independent regions: column k moves exactly one region.
@@ -309,21 +303,15 @@ impl CountingModel {
         for (k, t) in theta.iter().take(self.bkg_map.ncols()).enumerate() {
             shift += self.bkg_map[(i, k)] * t;
         }
-        let (b, s) = match self.constraint {
+        let s = match self.sig_index[i] {
+            Some(k) => self.signal[i] * (self.sig_width[i] * theta[k]).exp(),
+            None => self.signal[i],
+        };
+        let b = match self.constraint {
             BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
-                let s = match self.sig_index[i] {
-                    Some(k) => self.signal[i] * (1.0 + self.sig_width[i] * theta[k]),
-                    None => self.signal[i],
-                };
-                (self.background[i] + shift, s)
+                self.background[i] + shift
             }
-            BackgroundConstraint::LogNormal => {
-                let s = match self.sig_index[i] {
-                    Some(k) => self.signal[i] * (self.sig_width[i] * theta[k]).exp(),
-                    None => self.signal[i],
-                };
-                (self.background[i] * shift.exp(), s)
-            }
+            BackgroundConstraint::LogNormal => self.background[i] * shift.exp(),
         };
         (mu * s + b, b, s)
     }
@@ -416,12 +404,7 @@ impl CountingModel {
                     BackgroundConstraint::LogNormal => b * self.bkg_map[(i, 0)],
                 }
             } else if self.sig_index[i].is_some() {
-                match self.constraint {
-                    BackgroundConstraint::Gaussian | BackgroundConstraint::Poisson => {
-                        mu * self.signal[i] * self.sig_width[i]
-                    }
-                    BackgroundConstraint::LogNormal => mu * s * self.sig_width[i],
-                }
+                mu * s * self.sig_width[i]
             } else {
                 0.0
             };
@@ -440,21 +423,16 @@ impl CountingModel {
         g
     }
 
-    /// Bounds of the single nuisance θ_0 from b(θ) ≥ 0 and s(θ) ≥ 0.
+    /// Bounds of the single nuisance θ_0 from b(θ) ≥ 0 (a log-normal
+    /// signal nuisance has none).
     fn bounds_one(&self) -> (f64, f64) {
         let mut lo = f64::NEG_INFINITY;
         let mut hi = f64::INFINITY;
-        if self.constraint == BackgroundConstraint::LogNormal {
+        if self.constraint == BackgroundConstraint::LogNormal || self.bkg_map.ncols() != 1 {
             return (lo, hi);
         }
         for i in 0..self.n_regions() {
-            let (offset, slope) = if self.bkg_map.ncols() == 1 {
-                (self.background[i], self.bkg_map[(i, 0)])
-            } else if self.sig_index[i].is_some() {
-                (1.0, self.sig_width[i])
-            } else {
-                continue;
-            };
+            let (offset, slope) = (self.background[i], self.bkg_map[(i, 0)]);
             if slope > 0.0 {
                 lo = lo.max(-offset / slope);
             } else if slope < 0.0 {
@@ -546,11 +524,7 @@ impl CountingModel {
                 d[off + k] = if log_normal { b * l } else { l };
             }
             let ds = self.sig_index[i].map(|k| {
-                let dsdx = if log_normal {
-                    s * self.sig_width[i]
-                } else {
-                    self.signal[i] * self.sig_width[i]
-                };
+                let dsdx = s * self.sig_width[i];
                 d[off + k] = mu * dsdx;
                 (k, dsdx)
             });
@@ -577,9 +551,7 @@ impl CountingModel {
                     h[off + k] += r * dsdx;
                     h[(off + k) * np] += r * dsdx;
                 }
-                if log_normal {
-                    h[(off + k) * np + off + k] += r * mu * dsdx * self.sig_width[i];
-                }
+                h[(off + k) * np + off + k] += r * mu * dsdx * self.sig_width[i];
             }
         }
     }
