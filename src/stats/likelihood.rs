@@ -45,7 +45,7 @@ use super::{BackgroundConstraint, RegionCounts, StatsError};
 /// Data seen by the likelihood: counts per region and global observables.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Data {
-    /// Counts per region [events]; non-integer for the Asimov data set.
+    /// Counts per region \[events\]; non-integer for the Asimov data set.
     pub counts: Vec<f64>,
     /// Global observables, one per nuisance parameter (nominal 0).
     pub globals: Vec<f64>,
@@ -155,7 +155,7 @@ pub(crate) fn validate_covariance(c: &DMatrix<f64>, n: usize) -> Result<(), Stat
 
 impl CountingModel {
     /// Builds the model. Inputs are assumed validated by the caller
-    /// ([`super::validate_regions`]); `covariance`, if given, replaces the
+    /// (`validate_regions` in the parent module); `covariance`, if given, replaces the
     /// per-region background uncertainties.
     pub fn new(
         regions: &[RegionCounts],
@@ -271,7 +271,7 @@ impl CountingModel {
         self.bkg_map.ncols()
     }
 
-    /// Total nominal signal Σ s_i [events].
+    /// Total nominal signal Σ s_i \[events\].
     pub fn total_signal(&self) -> f64 {
         self.signal.iter().sum()
     }
@@ -316,7 +316,7 @@ impl CountingModel {
         (mu * s + b, b, s)
     }
 
-    /// Expected count of region `i`: (ν, b, s) [events].
+    /// Expected count of region `i`: (ν, b, s) \[events\].
     pub fn expected(&self, i: usize, mu: f64, theta: &[f64]) -> (f64, f64, f64) {
         self.parts(i, mu, theta)
     }

@@ -30,7 +30,7 @@ pub mod toys;
 pub use likelihood::CountingModel;
 pub use significance::{discovery_significance, discovery_significance_with_unc};
 
-/// Expected background [events] below which the asymptotic method warns.
+/// Expected background \[events\] below which the asymptotic method warns.
 pub const SMALL_BACKGROUND_EVENTS: f64 = 5.0;
 
 /// Errors of the statistics stage.
@@ -80,7 +80,7 @@ pub struct RegionCounts {
     pub observed: u64,
     /// Expected background events b.
     pub background: f64,
-    /// Absolute background uncertainty σ_b [events].
+    /// Absolute background uncertainty σ_b \[events\].
     pub background_unc: f64,
     /// Expected signal events s at μ = 1.
     pub signal: f64,
@@ -318,7 +318,7 @@ pub fn region_limit(region: &RegionCounts, opts: &LimitOptions) -> Result<Limit,
 }
 
 /// Upper limit on μ from the combined likelihood of exclusive regions,
-/// optionally with a background covariance matrix [events²].
+/// optionally with a background covariance matrix \[events²\].
 ///
 /// With a covariance the backgrounds share a multivariate Gaussian (or
 /// log-normal) constraint and the per-region `background_unc` are not used
