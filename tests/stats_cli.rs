@@ -36,6 +36,22 @@ fn single_region_exact_prints_ln20() {
 }
 
 #[test]
+fn discovery_significance_in_table() {
+    // s = 50, b = 100: Z_A = 4.6518, Z with σ_b = 7: 3.72 (REFERENCES.md §2).
+    let out = recoil()
+        .args(["limit", "--observed", "100", "--background", "100"])
+        .args(["--background-unc", "7", "--signal", "50"])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("Z_A [σ]") && text.contains("4.652") && text.contains("3.72"),
+        "{text}"
+    );
+}
+
+#[test]
 fn regions_with_covariance_write_json() {
     let dir = tempfile::tempdir().unwrap();
     let regions = dir.path().join("regions.csv");

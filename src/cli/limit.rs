@@ -138,6 +138,10 @@ struct Row {
     s95_expected_events: [f64; 5],
     sigma_vis_observed_fb: Option<f64>,
     sigma_vis_expected_fb: Option<[f64; 5]>,
+    /// Median discovery significance Z_A [σ] for known background.
+    z_discovery: Option<f64>,
+    /// Median discovery significance with the background uncertainty [σ].
+    z_discovery_with_unc: Option<f64>,
 }
 
 fn row(name: &str, signal: f64, limit: Limit, lumi: Option<f64>) -> anyhow::Result<Row> {
@@ -162,6 +166,8 @@ fn row(name: &str, signal: f64, limit: Limit, lumi: Option<f64>) -> anyhow::Resu
         s95_expected_events: s95_exp,
         sigma_vis_observed_fb: obs,
         sigma_vis_expected_fb: exp,
+        z_discovery: None,
+        z_discovery_with_unc: None,
     })
 }
 
@@ -332,6 +338,7 @@ fn print_table(rows: &[&Row], lumi: bool) {
             "σ_vis obs [fb]", "σ_vis exp [fb]"
         ));
     }
+    header.push_str(&format!(" {:>8} {:>10}", "Z_A [σ]", "Z(σ_b) [σ]"));
     println!("{header}");
     for r in rows {
         let l = &r.limit;
@@ -356,6 +363,12 @@ fn print_table(rows: &[&Row], lumi: bool) {
         if let (Some(o), Some(e)) = (r.sigma_vis_observed_fb, r.sigma_vis_expected_fb) {
             line.push_str(&format!(" {:>14} {:>14}", fmt(o), fmt(e[2])));
         }
+        let z = |v: Option<f64>| v.map_or_else(|| "-".to_owned(), |x| format!("{x:.3}"));
+        line.push_str(&format!(
+            " {:>8} {:>10}",
+            z(r.z_discovery),
+            z(r.z_discovery_with_unc)
+        ));
         println!("{line}");
     }
 }
@@ -418,7 +431,16 @@ pub fn run(args: LimitArgs) -> anyhow::Result<()> {
     for r in &regions {
         let l = stats::region_limit(&r.counts, &opts)
             .with_context(|| format!("region {:?}", r.name))?;
-        limits.push(row(&r.name, r.counts.signal, l, args.lumi)?);
+        let mut line = row(&r.name, r.counts.signal, l, args.lumi)?;
+        let c = &r.counts;
+        // Discovery significance needs a signal hypothesis and b > 0.
+        if args.signal.is_some() || args.regions.is_some() {
+            line.z_discovery = stats::discovery_significance(c.signal, c.background).ok();
+            line.z_discovery_with_unc =
+                stats::discovery_significance_with_unc(c.signal, c.background, c.background_unc)
+                    .ok();
+        }
+        limits.push(line);
     }
     let (best, combined) = if regions.len() > 1 {
         let counts: Vec<RegionCounts> = regions.iter().map(|r| r.counts).collect();
