@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 
 mod direct;
 mod inspect;
+mod limit;
 mod plot;
 mod translate;
 
@@ -28,6 +29,8 @@ enum Command {
     Plot(plot::PlotArgs),
     /// Direct detection: recoil spectrum, expected counts, limit curve.
     Direct(direct::DirectArgs),
+    /// CLs upper limits for counting experiments (exact, asymptotic, pseudo-experiments).
+    Limit(limit::LimitArgs),
 }
 
 /// Runs the parsed command.
@@ -37,5 +40,6 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Translate(args) => translate::run(args),
         Command::Plot(args) => plot::run(args),
         Command::Direct(args) => direct::run(args),
+        Command::Limit(args) => limit::run(args),
     }
 }
