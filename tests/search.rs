@@ -702,3 +702,62 @@ fn truth_detector_feeds_the_regions() {
     assert_eq!(truth_met.bins[5].low_gev, 250.0);
     assert!(truth_met.bins[5].events > 0.0);
 }
+
+#[test]
+fn limits_come_from_the_region_counts() {
+    use recoil::search::{model_independent_limits, search_limits};
+    use recoil::stats::{BackgroundConstraint, LimitOptions, Method};
+    // Known backgrounds (σ_b = 0) so that the exact Poisson CLs applies.
+    let text = r#"title = "known backgrounds"
+sqrt_s_tev = 13.0
+lumi_ifb = 10.0
+[reference]
+paper = "hand-written test"
+[[regions]]
+name = "none_seen"
+exclusive = false
+cuts = ["met > 300"]
+observed = 0
+background = 1.0
+background_unc = 0.0
+[[regions]]
+name = "one_seen"
+exclusive = false
+cuts = ["met > 500"]
+observed = 1
+background = 1.0
+background_unc = 0.0
+"#;
+    let search = Search::from_toml_str(text, "k.toml").unwrap();
+    let mut y = YieldAccumulator::new(&search, 0)
+        .finish_with(|_, _| 1.0, 0, 10.0)
+        .unwrap();
+    // Hand-set signal without MC uncertainty: 2 and 1 events.
+    y.regions[0].events = 2.0;
+    y.regions[1].events = 1.0;
+    let opts = LimitOptions {
+        cl: 0.95,
+        method: Method::Exact,
+        constraint: BackgroundConstraint::Gaussian,
+    };
+    let limits = search_limits(&search, &y, &opts).unwrap();
+    // n = 0: s_up = ln 20 = 2.9957 for any b (REFERENCES.md §1, Helene
+    // formula, from memory); μ_up = s_up / s = 2.9957 / 2.
+    let close = |a: f64, b: f64, tol: f64| (a - b).abs() <= tol;
+    assert!(close(
+        limits.regions[0].limit.mu_up_observed,
+        20f64.ln() / 2.0,
+        1e-3
+    ));
+    // n = 1, b = 1: s_up = 4.1130 (REFERENCES.md §1, computed with scipy).
+    assert!(close(limits.regions[1].limit.mu_up_observed, 4.1130, 1e-3));
+    assert!(limits.combined.is_none(), "no exclusive regions");
+    // Same background, twice the signal: the first region is more sensitive.
+    assert_eq!(limits.best_region, Some(0));
+
+    let mi = model_independent_limits(&search, &opts).unwrap();
+    assert!(close(mi[0].s95_obs, 2.9957, 1e-3));
+    assert!(close(mi[1].s95_obs, 4.1130, 1e-3));
+    // σ_vis = s95 / L with L = 10 fb⁻¹.
+    assert!(close(mi[1].sigma_vis_obs_fb, 0.41130, 1e-4));
+}

@@ -3,7 +3,10 @@
 
 use clap::{Parser, Subcommand};
 
+mod direct;
 mod inspect;
+mod limit;
+mod plot;
 mod recast;
 mod translate;
 
@@ -25,6 +28,12 @@ enum Command {
     Recast(Box<recast::RecastArgs>),
     /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
     Translate(translate::TranslateArgs),
+    /// Figures (SVG, with their data as CSV) from the files other commands write.
+    Plot(plot::PlotArgs),
+    /// Direct detection: recoil spectrum, expected counts, limit curve.
+    Direct(direct::DirectArgs),
+    /// CLs upper limits for counting experiments (exact, asymptotic, pseudo-experiments).
+    Limit(limit::LimitArgs),
 }
 
 /// Runs the parsed command.
@@ -33,5 +42,8 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Inspect(args) => inspect::run(args),
         Command::Recast(args) => recast::run(*args),
         Command::Translate(args) => translate::run(args),
+        Command::Plot(args) => plot::run(args),
+        Command::Direct(args) => direct::run(args),
+        Command::Limit(args) => limit::run(args),
     }
 }

@@ -50,8 +50,8 @@ pub struct RecastArgs {
     #[arg(long, value_name = "RULE", default_value = "linear")]
     pub background_unc_scaling: String,
 
-    /// CLs method: `asymptotic`, `exact` (Poisson, background known) or
-    /// `toys`.
+    /// CLs method: `asymptotic`, `exact` (Poisson; only for regions whose
+    /// background uncertainty is 0) or `toys`.
     #[arg(long, default_value = "asymptotic")]
     pub method: String,
 
@@ -59,8 +59,9 @@ pub struct RecastArgs {
     #[arg(long, default_value_t = 10_000)]
     pub toys: usize,
 
-    /// Constraint on the background nuisance parameter: `gaussian` or
-    /// `lognormal`.
+    /// Constraint on the background nuisance parameter: `gaussian`,
+    /// `lognormal` or `poisson` (auxiliary measurement; independent regions
+    /// only).
     #[arg(long, default_value = "gaussian")]
     pub constraint: String,
 
@@ -139,7 +140,8 @@ impl Config {
         let constraint = match args.constraint.as_str() {
             "gaussian" => BackgroundConstraint::Gaussian,
             "lognormal" => BackgroundConstraint::LogNormal,
-            other => bail!("--constraint must be gaussian or lognormal, got \"{other}\""),
+            "poisson" => BackgroundConstraint::Poisson,
+            other => bail!("--constraint must be gaussian, lognormal or poisson, got \"{other}\""),
         };
         let variation = match &args.detector_variation {
             Some(spec) => spec.parse::<Variation>().context("--detector-variation")?,
@@ -360,6 +362,7 @@ fn method_text(opts: &LimitOptions) -> String {
     let c = match opts.constraint {
         BackgroundConstraint::Gaussian => "Gaussian",
         BackgroundConstraint::LogNormal => "log-normal",
+        BackgroundConstraint::Poisson => "Poisson auxiliary-measurement (on/off)",
     };
     format!("{m}; {c} background constraint")
 }
