@@ -8,8 +8,8 @@ use anyhow::{Context, bail};
 use recoil::detector::{Detector, DetectorProfile, Variation};
 use recoil::events::{EventSource, FileCombination, InvisibleSet, ReadOptions};
 use recoil::search::{
-    ModelIndependentLimit, Search, SearchLimits, UncertaintyScaling, model_independent_limits,
-    run_sample, search_limits,
+    ModelIndependentLimit, Search, SearchLimits, UncertaintyScaling, formats,
+    model_independent_limits, run_sample, search_limits,
 };
 use recoil::stats::{BackgroundConstraint, LimitOptions, Method};
 
@@ -604,32 +604,7 @@ fn yields_csv(
             ]
         })
         .collect();
-    csv_bytes(
-        &[
-            "region",
-            "inclusive",
-            "met_low_gev",
-            "met_high_gev",
-            "signal_events",
-            "signal_mc_stat",
-            "signal_var_low",
-            "signal_var_high",
-            "efficiency",
-            "background",
-            "background_unc",
-            "observed",
-            "cls_mu1",
-            "mu_up_obs",
-            "mu_up_exp",
-            "mu_up_exp_m1",
-            "mu_up_exp_p1",
-            "s95_obs",
-            "s95_exp",
-            "sigma_vis_up_obs_fb",
-            "sigma_vis_up_exp_fb",
-        ],
-        rows,
-    )
+    csv_bytes(&formats::YIELDS_COLUMNS, rows)
 }
 
 fn cutflow_csv(y: &recoil::search::SampleYields) -> anyhow::Result<Vec<u8>> {
@@ -647,18 +622,7 @@ fn cutflow_csv(y: &recoil::search::SampleYields) -> anyhow::Result<Vec<u8>> {
             ]);
         }
     }
-    csv_bytes(
-        &[
-            "region",
-            "step",
-            "cut",
-            "raw_events",
-            "weighted_events",
-            "efficiency_cumulative",
-            "efficiency_step",
-        ],
-        rows,
-    )
+    csv_bytes(&formats::CUTFLOW_COLUMNS, rows)
 }
 
 fn distributions_csv(y: &recoil::search::SampleYields) -> anyhow::Result<Vec<u8>> {
@@ -675,17 +639,7 @@ fn distributions_csv(y: &recoil::search::SampleYields) -> anyhow::Result<Vec<u8>
             ]);
         }
     }
-    csv_bytes(
-        &[
-            "observable",
-            "level",
-            "bin_low_gev",
-            "bin_high_gev",
-            "events",
-            "mc_stat",
-        ],
-        rows,
-    )
+    csv_bytes(&formats::DISTRIBUTIONS_COLUMNS, rows)
 }
 
 /// SHA-256 of a file's content, as lowercase hex.

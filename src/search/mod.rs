@@ -12,12 +12,14 @@
 //! | `observables.rs` | the one registry of observables ([`observables::REGISTRY`]) |
 //! | `yields.rs` | [`YieldAccumulator`], [`SampleYields`], [`run_sample`] |
 //! | `cutflow.rs` | [`Cutflow`] |
+//! | `formats.rs` | column names of the `recast --out` files |
 //! | `limits.rs` | [`search_limits`], [`model_independent_limits`] |
 
 pub mod cutflow;
 pub mod definition;
 pub mod error;
 pub mod expr;
+pub mod formats;
 pub mod limits;
 pub mod observables;
 pub mod yields;
