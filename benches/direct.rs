@@ -8,6 +8,7 @@ use std::time::Duration;
 use criterion::{Criterion, criterion_group, criterion_main};
 use recoil::direct::{
     Experiment, Interaction, LimitKind, PoissonMethod, limit_curve_points, log_mass_grid,
+    poisson_upper_limit,
 };
 
 fn reach_curve(c: &mut Criterion) {
@@ -43,5 +44,21 @@ fn reach_curve(c: &mut Criterion) {
     group.finish();
 }
 
-criterion_group!(benches, reach_curve);
+/// One Poisson upper limit (n = 3, b = 3.4 events, 90 % CL), the step every
+/// curve takes once per limit kind.
+fn poisson_limit(c: &mut Criterion) {
+    let mut group = c.benchmark_group("direct_poisson_upper_limit");
+    group
+        .sample_size(10)
+        .warm_up_time(Duration::from_millis(300))
+        .measurement_time(Duration::from_secs(1));
+    for method in [PoissonMethod::Classical, PoissonMethod::Cls] {
+        group.bench_function(method.label(), |b| {
+            b.iter(|| poisson_upper_limit(3, 3.4, 0.9, method).expect("limit"))
+        });
+    }
+    group.finish();
+}
+
+criterion_group!(benches, reach_curve, poisson_limit);
 criterion_main!(benches);
