@@ -116,7 +116,8 @@ pub(crate) fn find_init_end(head: &[u8], complete: bool) -> Option<usize> {
 /// "), if present.
 pub(crate) fn attribute<'a>(tag: &'a [u8], name: &[u8]) -> Option<&'a [u8]> {
     let mut rest = tag;
-    while let Some(pos) = memchr::memmem::find(rest, name) {
+    // Tags are short: a plain scan beats building a substring searcher.
+    while let Some(pos) = rest.windows(name.len()).position(|w| w == name) {
         let before_ok = pos == 0 || rest[pos - 1].is_ascii_whitespace();
         let after = rest[pos + name.len()..].trim_ascii_start();
         if before_ok && let Some(after_eq) = after.strip_prefix(b"=") {

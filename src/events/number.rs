@@ -34,53 +34,85 @@ pub fn parse_f64(s: &[u8]) -> Option<f64> {
     std::str::from_utf8(s).ok()?.parse::<f64>().ok()
 }
 
+/// True when the 8 bytes (little-endian in `x`) are all ASCII digits.
+#[inline]
+fn all_digits(x: u64) -> bool {
+    ((x & 0xF0F0_F0F0_F0F0_F0F0)
+        | (((x.wrapping_add(0x0606_0606_0606_0606)) & 0xF0F0_F0F0_F0F0_F0F0) >> 4))
+        == 0x3333_3333_3333_3333
+}
+
+/// Value of 8 ASCII digits (little-endian in `x`, first digit lowest),
+/// by the SWAR reduction of pairs, quads and octets (common practice;
+/// the well-known trick used by fast decimal parsers).
+#[inline]
+fn eight_digits(x: u64) -> u64 {
+    let x = x.wrapping_sub(0x3030_3030_3030_3030);
+    let x = (x.wrapping_mul(10)).wrapping_add(x >> 8);
+    let lo = x & 0x0000_00FF_0000_00FF;
+    let hi = (x >> 16) & 0x0000_00FF_0000_00FF;
+    (lo.wrapping_mul(100 + (1_000_000 << 32))).wrapping_add(hi.wrapping_mul(1 + (10_000 << 32)))
+        >> 32
+}
+
 #[inline]
 fn fast_f64(s: &[u8]) -> Option<f64> {
-    let mut i = 0;
     let n = s.len();
-    let neg = match s.first()? {
+    let mut i = 0;
+    let neg = match *s.first()? {
         b'-' => {
-            i += 1;
+            i = 1;
             true
         }
         b'+' => {
-            i += 1;
+            i = 1;
             false
         }
         _ => false,
     };
     let mut mant: u64 = 0;
-    let mut n_sig = 0u32; // significant digits accumulated (after leading zeros)
-    let mut n_digits = 0u32; // all digits seen
-    let mut frac_digits: i32 = 0;
-    let mut seen_dot = false;
-    while i < n {
-        let c = s[i];
-        if c.is_ascii_digit() {
-            n_digits += 1;
-            if mant != 0 || c != b'0' {
-                n_sig += 1;
-                if n_sig > 19 {
-                    return None;
-                }
-                mant = mant * 10 + u64::from(c - b'0');
-            }
-            if seen_dot {
-                frac_digits += 1;
-            }
-        } else if c == b'.' && !seen_dot {
-            seen_dot = true;
-        } else {
-            break;
-        }
+    let int_start = i;
+    while i < n && s[i].is_ascii_digit() {
+        mant = mant * 10 + u64::from(s[i] - b'0');
         i += 1;
+        if i - int_start > 19 {
+            return None;
+        }
+    }
+    let mut n_digits = i - int_start;
+    let mut frac_digits: i32 = 0;
+    if i < n && s[i] == b'.' {
+        i += 1;
+        let frac_start = i;
+        while i + 8 <= n {
+            // invariant: the slice has exactly 8 bytes
+            let x = u64::from_le_bytes(s[i..i + 8].try_into().unwrap());
+            if !all_digits(x) {
+                break;
+            }
+            if n_digits + 8 > 19 {
+                return None;
+            }
+            mant = mant * 100_000_000 + eight_digits(x);
+            n_digits += 8;
+            i += 8;
+        }
+        while i < n && s[i].is_ascii_digit() {
+            if n_digits + 1 > 19 {
+                return None;
+            }
+            mant = mant * 10 + u64::from(s[i] - b'0');
+            n_digits += 1;
+            i += 1;
+        }
+        frac_digits = (i - frac_start) as i32;
     }
     if n_digits == 0 {
         return None;
     }
     let mut exp: i32 = 0;
     if i < n {
-        if s[i] != b'e' && s[i] != b'E' {
+        if s[i] | 0x20 != b'e' {
             return None;
         }
         i += 1;
@@ -157,9 +189,40 @@ pub fn parse_i32(s: &[u8]) -> Option<i32> {
 
 /// Splits a line into fields separated by ASCII blanks (space, tab, CR).
 #[inline]
-pub fn fields(line: &[u8]) -> impl Iterator<Item = &[u8]> {
-    line.split(|&c| c == b' ' || c == b'\t' || c == b'\r')
-        .filter(|f| !f.is_empty())
+pub fn fields(line: &[u8]) -> Fields<'_> {
+    Fields { rest: line }
+}
+
+/// Iterator over the blank-separated fields of a line.
+pub struct Fields<'a> {
+    rest: &'a [u8],
+}
+
+#[inline]
+fn is_blank(c: u8) -> bool {
+    c == b' ' || c == b'\t' || c == b'\r'
+}
+
+impl<'a> Iterator for Fields<'a> {
+    type Item = &'a [u8];
+    #[inline]
+    fn next(&mut self) -> Option<&'a [u8]> {
+        let r = self.rest;
+        let mut i = 0;
+        while i < r.len() && is_blank(r[i]) {
+            i += 1;
+        }
+        if i == r.len() {
+            self.rest = &r[i..];
+            return None;
+        }
+        let start = i;
+        while i < r.len() && !is_blank(r[i]) {
+            i += 1;
+        }
+        self.rest = &r[i..];
+        Some(&r[start..i])
+    }
 }
 
 /// Removes leading and trailing ASCII whitespace.

@@ -153,6 +153,9 @@ fn add_sums(sums: &mut Vec<ProcessSums>, ev: &Event) {
     s.n_negative += u64::from(ev.weight < 0.0);
 }
 
+static WGT_FINDER: std::sync::LazyLock<memchr::memmem::Finder<'static>> =
+    std::sync::LazyLock::new(|| memchr::memmem::Finder::new(b"<wgt"));
+
 const PARTICLE_COLUMNS: [&str; 13] = [
     "IDUP",
     "ISTUP",
@@ -317,6 +320,7 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
     let mut positional: Vec<f64> = Vec::new();
     let mut in_weights = false;
     let mut saw_weights = false;
+    let mut n_named = 0usize;
     loop {
         let Some(raw) = lines.next_line() else {
             return Err(truncated(lines.line));
@@ -350,7 +354,14 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
             in_weights = !closed;
             continue;
         }
-        if let Some(pos) = memchr::memmem::find(line, b"<wgt") {
+        let wgt_pos = if line.starts_with(b"<wgt") {
+            Some(0)
+        } else if memchr::memchr(b'<', line).is_some() {
+            WGT_FINDER.find(line)
+        } else {
+            None
+        };
+        if let Some(pos) = wgt_pos {
             saw_weights = true;
             let tag = &line[pos..];
             let Some(gt) = memchr::memchr(b'>', tag) else {
@@ -364,7 +375,8 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
             };
             let id = trim(id);
             let rest = &tag[gt + 1..];
-            let val = match memchr::memmem::find(rest, b"</wgt>") {
+            let close = memchr::memrchr(b'<', rest).filter(|&p| rest[p..].starts_with(b"</wgt>"));
+            let val = match close {
                 Some(p) => trim(&rest[..p]),
                 None => {
                     return Err(err(
@@ -386,7 +398,8 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
             if named.is_empty() {
                 named = vec![None; n_names];
             }
-            let guess = named.iter().filter(|x| x.is_some()).count();
+            let guess = n_named;
+            n_named += 1;
             let k = if file.weight_names.get(guess).map(String::as_bytes) == Some(id) {
                 guess
             } else {
