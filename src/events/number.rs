@@ -217,6 +217,23 @@ impl<'a> Iterator for Fields<'a> {
             return None;
         }
         let start = i;
+        // Eight bytes at a time: flag bytes below 0x21 (blanks are among
+        // them); the lowest flagged byte is exact (the classic
+        // "has a byte less than n" bit trick, common practice).
+        while i + 8 <= r.len() {
+            // invariant: the slice has exactly 8 bytes
+            let x = u64::from_le_bytes(r[i..i + 8].try_into().unwrap());
+            let t = x.wrapping_sub(0x2121_2121_2121_2121) & !x & 0x8080_8080_8080_8080;
+            if t == 0 {
+                i += 8;
+                continue;
+            }
+            i += (t.trailing_zeros() / 8) as usize;
+            if is_blank(r[i]) {
+                break;
+            }
+            i += 1;
+        }
         while i < r.len() && !is_blank(r[i]) {
             i += 1;
         }
@@ -273,6 +290,26 @@ mod tests {
         ] {
             check(s);
         }
+    }
+
+    #[test]
+    fn splits_fields() {
+        let line = b"  21 -1 0 0 +1.2345678901e+03\t-0.5e-2\r\x01x  abcdefghijklmnopq ";
+        let f: Vec<&[u8]> = fields(line).collect();
+        assert_eq!(
+            f,
+            [
+                &b"21"[..],
+                b"-1",
+                b"0",
+                b"0",
+                b"+1.2345678901e+03",
+                b"-0.5e-2",
+                b"\x01x",
+                b"abcdefghijklmnopq"
+            ]
+        );
+        assert_eq!(fields(b"   ").count(), 0);
     }
 
     #[test]
