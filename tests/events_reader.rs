@@ -504,10 +504,13 @@ fn edit_line(text: &str, n: usize, f: impl Fn(&str) -> String) -> String {
 
 /// 1-based line of the k-th (1-based) particle line of event `ev`.
 fn particle_line(text: &str, ev: usize, k: usize) -> usize {
-    let mut start = 0;
-    for _ in 0..ev {
-        start = line_of(text, start, "<event>");
-    }
+    let start = text
+        .lines()
+        .enumerate()
+        .filter(|(_, l)| l.trim() == "<event>")
+        .nth(ev - 1)
+        .map(|(i, _)| i + 1)
+        .expect("event present");
     start + 1 + k
 }
 
@@ -786,4 +789,26 @@ fn generator_is_deterministic() {
     let mut v = Vec::new();
     write_lhef(&spec, &mut v).expect("write");
     assert_eq!(v, lhef_string(&spec).into_bytes());
+}
+
+// Event and line numbers stay right in a later chunk of a large file (the
+// line is found by searching the text, independently of the reader).
+#[test]
+fn error_numbers_in_a_later_chunk() {
+    let t = lhef_string(&Spec {
+        n_events: 9_000,
+        ..Default::default()
+    });
+    assert!(t.len() > 2 * recoil::events::BLOCK_BYTES);
+    // Event k starts on line 9 + 9(k−1) of this layout; find it by text.
+    let target = 8_765;
+    let n = particle_line(&t, target, 5);
+    let t = edit_line(&t, n, |l| l.replacen("52", "52 7", 1));
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "event {target}: line {n}: particle line 5 has 14 columns"
+        )),
+        "{e}"
+    );
 }

@@ -30,6 +30,8 @@ pub(crate) struct ParsedChunk {
     pub sums: Vec<ProcessSums>,
     /// True when the chunk holds `</LesHouchesEvents>`.
     pub end_tag: bool,
+    /// Lines in the chunk.
+    pub n_lines: u64,
 }
 
 /// Where a chunk sits in its file, for error messages.
@@ -123,6 +125,7 @@ pub(crate) fn parse_chunk(
             });
         }
     }
+    out.n_lines = lines.line + 1 - place.first_line;
     if place.last && !out.end_tag {
         return Err(BodyFault {
             event: None,

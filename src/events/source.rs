@@ -16,7 +16,7 @@
 use super::error::EventError;
 use super::gzip::{Input, fill, open_input};
 use super::init::{FileInfo, HeaderFault, find_init_end, parse_head};
-use super::parse::{ChunkPlace, ParsedChunk, ProcessSums, parse_chunk};
+use super::parse::{BodyFault, ChunkPlace, ParsedChunk, ProcessSums, parse_chunk};
 use super::weights::{SampleSummary, summarize};
 use super::{ChunkContext, Event, FileCombination, ReadOptions};
 use std::collections::BTreeMap;
@@ -27,6 +27,9 @@ use std::sync::mpsc;
 /// Target size of a chunk of event text [bytes]. Chunk boundaries depend
 /// on this constant and the file content only.
 pub const BLOCK_BYTES: usize = 4 << 20;
+
+/// Largest span of text without a new event the reader accepts [bytes].
+pub const MAX_EVENT_BYTES: usize = 256 << 20;
 
 /// Largest header (first line to `</init>`) the reader accepts [bytes].
 pub const MAX_HEADER_BYTES: usize = 64 << 20;
@@ -175,7 +178,11 @@ impl EventSource {
         let mut sums: Vec<Vec<ProcessSums>> = vec![Vec::new(); info.files.len()];
         let mut done_bytes: u64 = 0;
 
-        type Out<T> = Result<(T, ParsedChunkMeta), EventError>;
+        // A failed chunk reports its file and the fault with a line number
+        // counted from the chunk's first line; the consumer, which knows
+        // the lines of all earlier chunks, makes it a file line number.
+        type Out<T> = Result<(T, ParsedChunkMeta), (usize, BodyFault)>;
+        let mut line_base: Vec<u64> = info.files.iter().map(|f| f.body_line).collect();
         let result: Result<(), EventError> = rayon::in_place_scope(|scope| {
             let (tx, rx) = mpsc::channel::<(usize, Out<T>)>();
             let mut pending: BTreeMap<usize, Out<T>> = BTreeMap::new();
@@ -192,17 +199,37 @@ impl EventSource {
              -> Result<(), EventError> {
                 while let Some(out) = pending.remove(consumed) {
                     *consumed += 1;
-                    let (value, meta) = out?;
+                    let (value, meta) = match out {
+                        Ok(x) => x,
+                        Err((fi, f)) => {
+                            let path = info.files[fi].path.clone();
+                            let line = line_base[fi] + f.line - 1;
+                            return Err(match f.event {
+                                Some(event) => EventError::Event {
+                                    path,
+                                    event,
+                                    line,
+                                    rule: f.rule,
+                                },
+                                None => EventError::Body {
+                                    path,
+                                    line,
+                                    rule: f.rule,
+                                },
+                            });
+                        }
+                    };
                     if let Some((fi, path)) = &after_end_tag
                         && *fi == meta.file_index
                         && meta.n_events > 0
                     {
                         return Err(EventError::Body {
                             path: path.clone(),
-                            line: meta.first_line,
+                            line: line_base[meta.file_index],
                             rule: "events after </LesHouchesEvents>".into(),
                         });
                     }
+                    line_base[meta.file_index] += meta.n_lines;
                     if meta.end_tag {
                         after_end_tag =
                             Some((meta.file_index, info.files[meta.file_index].path.clone()));
@@ -232,7 +259,6 @@ impl EventSource {
                     }
                     drop(skip);
                     let mut text_offset = file.body_offset;
-                    let mut first_line = file.body_line;
                     let mut first_event: u64 = 0;
                     let mut carry: Vec<u8> = Vec::new();
                     let mut eof = false;
@@ -253,15 +279,23 @@ impl EventSource {
                             }
                             match last_event_start(&buf) {
                                 Some(c) if c > 0 => break c,
+                                _ if buf.len() >= MAX_EVENT_BYTES => {
+                                    return Err(Ok(EventError::Sample {
+                                        path: path.clone(),
+                                        rule: format!(
+                                            "no <event> tag starts a line within {} MiB after byte {text_offset} of the text",
+                                            MAX_EVENT_BYTES >> 20
+                                        ),
+                                    }));
+                                }
                                 _ => want = buf.len() * 2,
                             }
                         };
                         carry = buf[cut..].to_vec();
                         buf.truncate(cut);
-                        let n_lines = memchr::memchr_iter(b'\n', &buf).count() as u64;
                         let n_events = count_event_starts(&buf);
                         let place = ChunkPlace {
-                            first_line,
+                            first_line: 1,
                             first_event,
                             last: eof,
                         };
@@ -270,7 +304,6 @@ impl EventSource {
                             first_event_index: first_event,
                         };
                         text_offset += buf.len() as u64;
-                        first_line += n_lines;
                         first_event += n_events;
                         let seq = issued;
                         issued += 1;
@@ -279,35 +312,28 @@ impl EventSource {
                         let first_failure = &first_failure;
                         scope.spawn(move |_| {
                             if seq > first_failure.load(Ordering::Relaxed) {
-                                let _ = tx.send((seq, Err(EventError::Format("cancelled".into()))));
+                                let skipped = BodyFault {
+                                    event: None,
+                                    line: 1,
+                                    rule: "skipped after an earlier error".into(),
+                                };
+                                let _ = tx.send((seq, Err((file_index, skipped))));
                                 return;
                             }
                             let out = parse_chunk(&buf, file, &place)
-                                .map_err(|f| match f.event {
-                                    Some(ev) => EventError::Event {
-                                        path: file.path.clone(),
-                                        event: ev,
-                                        line: f.line,
-                                        rule: f.rule,
-                                    },
-                                    None => EventError::Body {
-                                        path: file.path.clone(),
-                                        line: f.line,
-                                        rule: f.rule,
-                                    },
-                                })
-                                .and_then(|parsed| check_count(parsed, n_events, file, &place))
+                                .and_then(|parsed| check_count(parsed, n_events))
                                 .map(|parsed| {
                                     let value = map(&ctx, &parsed.events);
                                     let meta = ParsedChunkMeta {
                                         file_index,
-                                        first_line: place.first_line,
+                                        n_lines: parsed.n_lines,
                                         n_events: parsed.events.len() as u64,
                                         end_tag: parsed.end_tag,
                                         sums: parsed.sums,
                                     };
                                     (value, meta)
-                                });
+                                })
+                                .map_err(|f| (file_index, f));
                             if out.is_err() {
                                 first_failure.fetch_min(seq, Ordering::Relaxed);
                             }
@@ -385,24 +411,19 @@ fn receive<X>(rx: &mpsc::Receiver<X>) -> Option<X> {
 /// What the consumer needs from a parsed chunk besides the mapped value.
 struct ParsedChunkMeta {
     file_index: usize,
-    first_line: u64,
+    n_lines: u64,
     n_events: u64,
     end_tag: bool,
     sums: Vec<ProcessSums>,
 }
 
-fn check_count(
-    parsed: ParsedChunk,
-    n_counted: u64,
-    file: &FileInfo,
-    place: &ChunkPlace,
-) -> Result<ParsedChunk, EventError> {
+fn check_count(parsed: ParsedChunk, n_counted: u64) -> Result<ParsedChunk, BodyFault> {
     if parsed.events.len() as u64 == n_counted {
         Ok(parsed)
     } else {
-        Err(EventError::Body {
-            path: file.path.clone(),
-            line: place.first_line,
+        Err(BodyFault {
+            event: None,
+            line: 1,
             rule: format!(
                 "an <event> tag sits inside another block (found {} event tags, parsed {} events)",
                 n_counted,
