@@ -28,7 +28,9 @@ const MAX_EXACT_MANTISSA: u64 = 1 << 53;
 /// PLDI 1990, ACM SIGPLAN Notices 25(6) 92, the fast path of Sec. 5.
 #[inline]
 pub fn parse_f64(s: &[u8]) -> Option<f64> {
-    if let Some(v) = fast_f64(s) {
+    if let Some((v, used)) = fast_f64(s)
+        && used == s.len()
+    {
         return Some(v);
     }
     std::str::from_utf8(s).ok()?.parse::<f64>().ok()
@@ -55,8 +57,10 @@ fn eight_digits(x: u64) -> u64 {
         >> 32
 }
 
+/// The fast path on a prefix of `s`: the value and the number of bytes
+/// used, or `None` when the prefix is not in the fast-path form.
 #[inline]
-fn fast_f64(s: &[u8]) -> Option<f64> {
+fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
     let n = s.len();
     let mut i = 0;
     let neg = match *s.first()? {
@@ -111,10 +115,7 @@ fn fast_f64(s: &[u8]) -> Option<f64> {
         return None;
     }
     let mut exp: i32 = 0;
-    if i < n {
-        if s[i] | 0x20 != b'e' {
-            return None;
-        }
+    if i < n && s[i] | 0x20 == b'e' {
         i += 1;
         let eneg = match s.get(i) {
             Some(b'-') => {
@@ -135,7 +136,7 @@ fn fast_f64(s: &[u8]) -> Option<f64> {
             exp = exp * 10 + i32::from(s[i] - b'0');
             i += 1;
         }
-        if i == start || i != n {
+        if i == start {
             return None;
         }
         if eneg {
@@ -156,7 +157,81 @@ fn fast_f64(s: &[u8]) -> Option<f64> {
     } else {
         return None;
     };
-    Some(if neg { -v } else { v })
+    Some((if neg { -v } else { v }, i))
+}
+
+/// A position in a line, for reading fields in the usual case in one scan.
+/// Every method returns `None` when the next field is not in the fast
+/// form (or is missing); callers then re-read the line field by field to
+/// report the exact problem.
+pub struct Cursor<'a> {
+    s: &'a [u8],
+    i: usize,
+}
+
+impl<'a> Cursor<'a> {
+    /// A cursor at the start of `s`.
+    #[inline]
+    pub fn new(s: &'a [u8]) -> Self {
+        Self { s, i: 0 }
+    }
+
+    #[inline]
+    fn skip_blanks(&mut self) {
+        while self.i < self.s.len() && is_blank(self.s[self.i]) {
+            self.i += 1;
+        }
+    }
+
+    #[inline]
+    fn ends_field(&self, at: usize) -> bool {
+        at == self.s.len() || is_blank(self.s[at])
+    }
+
+    /// The next field as a number in the fast-path form.
+    #[inline]
+    pub fn f64(&mut self) -> Option<f64> {
+        self.skip_blanks();
+        let (v, used) = fast_f64(&self.s[self.i..])?;
+        let end = self.i + used;
+        if !self.ends_field(end) {
+            return None;
+        }
+        self.i = end;
+        Some(v)
+    }
+
+    /// The next field as an integer that fits an `i32`.
+    #[inline]
+    pub fn i32(&mut self) -> Option<i32> {
+        self.skip_blanks();
+        let r = &self.s[self.i..];
+        let mut k = usize::from(matches!(r.first(), Some(b'-' | b'+')));
+        let start = k;
+        let mut v: i64 = 0;
+        while k < r.len() && r[k].is_ascii_digit() {
+            if k - start >= 10 {
+                return None;
+            }
+            v = v * 10 + i64::from(r[k] - b'0');
+            k += 1;
+        }
+        if k == start || !self.ends_field(self.i + k) {
+            return None;
+        }
+        if r[0] == b'-' {
+            v = -v;
+        }
+        self.i += k;
+        i32::try_from(v).ok()
+    }
+
+    /// True when only blanks remain.
+    #[inline]
+    pub fn at_end(&mut self) -> bool {
+        self.skip_blanks();
+        self.i == self.s.len()
+    }
 }
 
 /// Parses a decimal integer `[±]digits` into an `i64`; `None` on any other
@@ -310,6 +385,21 @@ mod tests {
             ]
         );
         assert_eq!(fields(b"   ").count(), 0);
+    }
+
+    #[test]
+    fn cursor_reads_fields() {
+        let mut c = Cursor::new(b" 21 -1 +1.5e+01\t-2.25 7x 1e2");
+        assert_eq!(c.i32(), Some(21));
+        assert_eq!(c.i32(), Some(-1));
+        assert_eq!(c.f64(), Some(15.0));
+        assert_eq!(c.f64(), Some(-2.25));
+        assert_eq!(c.i32(), None); // "7x" is not an integer
+        let mut c = Cursor::new(b"1e2 ");
+        assert_eq!(c.f64(), Some(100.0));
+        assert!(c.at_end());
+        assert_eq!(Cursor::new(b"3000000000").i32(), None);
+        assert_eq!(Cursor::new(b"1.0").i32(), None);
     }
 
     #[test]
