@@ -164,3 +164,27 @@ pub(crate) fn fill(r: &mut dyn Read, buf: &mut Vec<u8>, want: usize) -> io::Resu
     let got = r.take(need).read_to_end(buf)? as u64;
     Ok(got < need)
 }
+
+/// Reads from `r` into `buf[*filled..want]` (growing `buf` to `want`
+/// bytes when shorter) until `want` bytes are filled or the stream ends;
+/// returns true at the end of the stream. Bytes of `buf` beyond `*filled`
+/// are scratch space.
+pub(crate) fn fill_into(
+    r: &mut dyn Read,
+    buf: &mut Vec<u8>,
+    filled: &mut usize,
+    want: usize,
+) -> io::Result<bool> {
+    if buf.len() < want {
+        buf.resize(want, 0);
+    }
+    while *filled < want {
+        match r.read(&mut buf[*filled..want]) {
+            Ok(0) => return Ok(true),
+            Ok(n) => *filled += n,
+            Err(e) if e.kind() == io::ErrorKind::Interrupted => {}
+            Err(e) => return Err(e),
+        }
+    }
+    Ok(false)
+}

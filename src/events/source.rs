@@ -14,7 +14,7 @@
 //! chunks is in flight, so memory does not grow with the file size.
 
 use super::error::EventError;
-use super::gzip::{Input, fill, open_input};
+use super::gzip::{Input, fill, fill_into, open_input};
 use super::init::{FileInfo, HeaderFault, find_init_end, parse_head};
 use super::parse::{BodyFault, ChunkPlace, ParsedChunk, ProcessSums, parse_chunk};
 use super::weights::{SampleSummary, summarize};
@@ -185,6 +185,7 @@ impl EventSource {
         let mut line_base: Vec<u64> = info.files.iter().map(|f| f.body_line).collect();
         let result: Result<(), EventError> = rayon::in_place_scope(|scope| {
             let (tx, rx) = mpsc::channel::<(usize, Out<T>)>();
+            let (recycled_tx, recycled_rx) = mpsc::channel::<Vec<u8>>();
             let mut pending: BTreeMap<usize, Out<T>> = BTreeMap::new();
             let mut issued = 0usize;
             let mut consumed = 0usize;
@@ -263,23 +264,27 @@ impl EventSource {
                     let mut carry: Vec<u8> = Vec::new();
                     let mut eof = false;
                     while !eof {
-                        let mut buf = std::mem::take(&mut carry);
-                        let mut want = BLOCK_BYTES;
+                        // Reuse a buffer a worker has finished with: its
+                        // memory is already initialised, so reading into it
+                        // costs no clearing and no allocation.
+                        let mut buf = recycled_rx.try_recv().unwrap_or_default();
+                        if buf.len() < carry.len() {
+                            buf.resize(carry.len(), 0);
+                        }
+                        buf[..carry.len()].copy_from_slice(&carry);
+                        let mut filled = carry.len();
+                        let mut want = BLOCK_BYTES.max(filled + 1);
                         let cut = loop {
-                            eof = fill(&mut input.reader, &mut buf, want).map_err(|e| {
-                                Ok(io_err(
-                                    path,
-                                    Some(&input),
-                                    text_offset + buf.len() as u64,
-                                    e,
-                                ))
-                            })?;
+                            eof = fill_into(&mut input.reader, &mut buf, &mut filled, want)
+                                .map_err(|e| {
+                                    Ok(io_err(path, Some(&input), text_offset + filled as u64, e))
+                                })?;
                             if eof {
-                                break buf.len();
+                                break filled;
                             }
-                            match last_event_start(&buf) {
+                            match last_event_start(&buf[..filled]) {
                                 Some(c) if c > 0 => break c,
-                                _ if buf.len() >= MAX_EVENT_BYTES => {
+                                _ if filled >= MAX_EVENT_BYTES => {
                                     return Err(Ok(EventError::Sample {
                                         path: path.clone(),
                                         rule: format!(
@@ -288,12 +293,12 @@ impl EventSource {
                                         ),
                                     }));
                                 }
-                                _ => want = buf.len() * 2,
+                                _ => want = filled * 2,
                             }
                         };
-                        carry = buf[cut..].to_vec();
-                        buf.truncate(cut);
-                        let n_events = count_event_starts(&buf);
+                        carry.clear();
+                        carry.extend_from_slice(&buf[cut..filled]);
+                        let n_events = count_event_starts(&buf[..cut]);
                         let place = ChunkPlace {
                             first_line: 1,
                             first_event,
@@ -303,11 +308,12 @@ impl EventSource {
                             file_index,
                             first_event_index: first_event,
                         };
-                        text_offset += buf.len() as u64;
+                        text_offset += cut as u64;
                         first_event += n_events;
                         let seq = issued;
                         issued += 1;
                         let tx = tx.clone();
+                        let recycled_tx = recycled_tx.clone();
                         let map = &map;
                         let first_failure = &first_failure;
                         scope.spawn(move |_| {
@@ -320,7 +326,7 @@ impl EventSource {
                                 let _ = tx.send((seq, Err((file_index, skipped))));
                                 return;
                             }
-                            let out = parse_chunk(&buf, file, &place)
+                            let out = parse_chunk(&buf[..cut], file, &place)
                                 .and_then(|parsed| check_count(parsed, n_events))
                                 .map(|parsed| {
                                     let value = map(&ctx, &parsed.events);
@@ -334,6 +340,7 @@ impl EventSource {
                                     (value, meta)
                                 })
                                 .map_err(|f| (file_index, f));
+                            let _ = recycled_tx.send(buf);
                             if out.is_err() {
                                 first_failure.fetch_min(seq, Ordering::Relaxed);
                             }
