@@ -12,7 +12,7 @@ use std::io::{self, BufReader, Read};
 use std::path::Path;
 use std::sync::Arc;
 use std::sync::atomic::{AtomicU64, Ordering};
-use std::sync::mpsc::{Receiver, sync_channel};
+use std::sync::mpsc::{Receiver, Sender, channel, sync_channel};
 
 /// Size of the blocks the decompression thread hands on [bytes].
 const GZIP_BLOCK: usize = 1 << 20;
@@ -45,6 +45,8 @@ impl<R: Read> Read for Counting<R> {
 /// Receives decompressed blocks from the decompression thread.
 struct ChannelReader {
     rx: Receiver<io::Result<Vec<u8>>>,
+    /// Returns emptied blocks to the decompression thread for reuse.
+    back: Sender<Vec<u8>>,
     block: Vec<u8>,
     pos: usize,
     done: bool,
@@ -58,7 +60,10 @@ impl Read for ChannelReader {
             }
             match self.rx.recv() {
                 Ok(Ok(b)) => {
-                    self.block = b;
+                    let old = std::mem::replace(&mut self.block, b);
+                    if old.capacity() > 0 {
+                        let _ = self.back.send(old);
+                    }
                     self.pos = 0;
                 }
                 Ok(Err(e)) => {
@@ -99,13 +104,15 @@ pub(crate) fn open_input(path: &Path) -> io::Result<Input> {
     };
     if got == 2 && magic == [0x1f, 0x8b] {
         let (tx, rx) = sync_channel::<io::Result<Vec<u8>>>(GZIP_QUEUE);
+        let (back, returned) = channel::<Vec<u8>>();
         std::thread::Builder::new()
             .name("recoil-gunzip".into())
             .spawn(move || {
                 let mut dec =
                     flate2::read::MultiGzDecoder::new(BufReader::with_capacity(1 << 16, counted));
                 loop {
-                    let mut block = vec![0u8; GZIP_BLOCK];
+                    let mut block = returned.try_recv().unwrap_or_default();
+                    block.resize(GZIP_BLOCK, 0);
                     let mut filled = 0;
                     let res = loop {
                         match dec.read(&mut block[filled..]) {
@@ -137,6 +144,7 @@ pub(crate) fn open_input(path: &Path) -> io::Result<Input> {
         Ok(Input {
             reader: Box::new(ChannelReader {
                 rx,
+                back,
                 block: Vec::new(),
                 pos: 0,
                 done: false,
