@@ -57,10 +57,49 @@ fn eight_digits(x: u64) -> u64 {
         >> 32
 }
 
+/// The layout `±d.dddddddddde±dd` (17 bytes) that the common LHEF writers
+/// use for every real, read without loops; the value and 17, or `None`.
+#[inline]
+fn fixed_layout(b: &[u8]) -> Option<(f64, usize)> {
+    if b.len() < 17
+        || !matches!(b[0], b'+' | b'-')
+        || b[2] != b'.'
+        || b[13] | 0x20 != b'e'
+        || !matches!(b[14], b'+' | b'-')
+    {
+        return None;
+    }
+    let d = |k: usize| u64::from(b[k].wrapping_sub(b'0'));
+    let (d0, d11, d12, e1, e2) = (d(1), d(11), d(12), d(15), d(16));
+    // invariant: the slice has exactly 8 bytes
+    let x = u64::from_le_bytes(b[3..11].try_into().unwrap());
+    if d0 > 9 || d11 > 9 || d12 > 9 || e1 > 9 || e2 > 9 || !all_digits(x) {
+        return None;
+    }
+    // 11 significant digits < 2^53: exact in an f64.
+    let mant = d0 * 10_000_000_000 + eight_digits(x) * 100 + d11 * 10 + d12;
+    let exp = (e1 * 10 + e2) as i32;
+    let q = if b[14] == b'-' { -exp } else { exp } - 10;
+    let w = mant as f64;
+    let v = if mant == 0 {
+        0.0
+    } else if (0..=22).contains(&q) {
+        w * POW10[q as usize]
+    } else if (-22..0).contains(&q) {
+        w / POW10[(-q) as usize]
+    } else {
+        return None;
+    };
+    Some((if b[0] == b'-' { -v } else { v }, 17))
+}
+
 /// The fast path on a prefix of `s`: the value and the number of bytes
 /// used, or `None` when the prefix is not in the fast-path form.
 #[inline]
 fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
+    if let Some(r) = fixed_layout(s) {
+        return Some(r);
+    }
     let n = s.len();
     let mut i = 0;
     let neg = match *s.first()? {
@@ -341,6 +380,10 @@ mod tests {
             "0",
             "-0",
             "-0.0000000000e+00",
+            "+0.0000000000e+00",
+            "-9.9999999999e-99",
+            "+1.2345678901e+30",
+            "+1.2345678901e+100",
             "+1.2345678901e+03",
             "-9.8765432109E-05",
             "6.5000000000e+03",
@@ -428,7 +471,12 @@ mod tests {
             if !v.is_finite() {
                 continue;
             }
-            for s in [format!("{v:.10e}"), format!("{v:e}"), format!("{v}")] {
+            let signed = format!("{v:+.10e}");
+            let (m, e) = signed.split_once('e').unwrap();
+            let e: i32 = e.parse().unwrap();
+            // The ±d.dddddddddde±dd layout of LHEF writers.
+            let lhef = format!("{m}e{}{:02}", if e < 0 { '-' } else { '+' }, e.abs());
+            for s in [format!("{v:.10e}"), format!("{v:e}"), format!("{v}"), lhef] {
                 check(&s);
             }
         }
