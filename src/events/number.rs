@@ -57,6 +57,23 @@ fn eight_digits(x: u64) -> u64 {
         >> 32
 }
 
+/// w·10^q for an exact mantissa w < 2⁵³ and |q| ≤ 22: one correctly
+/// rounded operation on two exact operands (Clinger 1990, Sec. 5); `None`
+/// outside that range.
+#[inline]
+fn clinger(mant: u64, q: i32) -> Option<f64> {
+    let w = mant as f64; // exact: callers ensure mant < 2^53
+    if mant == 0 {
+        Some(0.0)
+    } else if (0..=22).contains(&q) {
+        Some(w * POW10[q as usize])
+    } else if (-22..0).contains(&q) {
+        Some(w / POW10[(-q) as usize])
+    } else {
+        None
+    }
+}
+
 /// The layout `±d.dddddddddde±dd` (17 bytes) that the common LHEF writers
 /// use for every real, read without loops; the value and 17, or `None`.
 #[inline]
@@ -80,16 +97,7 @@ fn fixed_layout(b: &[u8]) -> Option<(f64, usize)> {
     let mant = d0 * 10_000_000_000 + eight_digits(x) * 100 + d11 * 10 + d12;
     let exp = (e1 * 10 + e2) as i32;
     let q = if b[14] == b'-' { -exp } else { exp } - 10;
-    let w = mant as f64;
-    let v = if mant == 0 {
-        0.0
-    } else if (0..=22).contains(&q) {
-        w * POW10[q as usize]
-    } else if (-22..0).contains(&q) {
-        w / POW10[(-q) as usize]
-    } else {
-        return None;
-    };
+    let v = clinger(mant, q)?;
     Some((if b[0] == b'-' { -v } else { v }, 17))
 }
 
@@ -186,16 +194,7 @@ fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
         return None;
     }
     let q = exp - frac_digits;
-    let w = mant as f64; // exact: mant < 2^53
-    let v = if mant == 0 {
-        0.0
-    } else if (0..=22).contains(&q) {
-        w * POW10[q as usize]
-    } else if (-22..0).contains(&q) {
-        w / POW10[(-q) as usize]
-    } else {
-        return None;
-    };
+    let v = clinger(mant, q)?;
     Some((if neg { -v } else { v }, i))
 }
 
