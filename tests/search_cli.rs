@@ -85,3 +85,48 @@ fn missing_event_file_is_named() {
         "{err}"
     );
 }
+
+#[test]
+fn results_are_identical_on_one_and_two_threads() {
+    // Three files (the reader cuts at least one chunk per file), combined
+    // as separate processes.
+    let demo = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-events/");
+    let files: Vec<String> = ["mmed1000_mdm1", "mmed1500_mdm1", "mmed2000_mdm1"]
+        .iter()
+        .map(|p| format!("{demo}tenebris_{p}.lhe.gz"))
+        .collect();
+    let dir = tempfile::tempdir().unwrap();
+    let mut outputs = Vec::new();
+    for threads in ["1", "2"] {
+        let out = dir.path().join(threads);
+        let out_s = out.to_str().unwrap().to_string();
+        let (code, err) = recast(&[
+            "--search",
+            DEMO,
+            "--threads",
+            threads,
+            "--seed",
+            "7",
+            "--out",
+            &out_s,
+            events,
+        ]);
+        assert_eq!(code, 0, "{err}");
+        let read = |name: &str| std::fs::read(out.join(name)).unwrap();
+        outputs.push((
+            read("yields.csv"),
+            read("cutflow.csv"),
+            read("distributions.csv"),
+        ));
+        let json: serde_json::Value = serde_json::from_slice(&read("result.json")).unwrap();
+        let sha = json["provenance"]["event_files"][0]["sha256"]
+            .as_str()
+            .unwrap();
+        assert_eq!(sha.len(), 64, "SHA-256 in hex");
+        assert_eq!(json["provenance"]["seed"], 7);
+    }
+    assert!(
+        outputs[0] == outputs[1],
+        "outputs differ between 1 and 2 threads"
+    );
+}

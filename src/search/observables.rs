@@ -113,7 +113,8 @@ impl Attribute {
 
     fn of(self, p: &P4) -> f64 {
         match self {
-            Attribute::Pt => p.pt(),
+            // √(px² + py²) without hypot's overflow guard (GeV scales).
+            Attribute::Pt => p.pt2().sqrt(),
             Attribute::Eta => p.eta(),
             Attribute::AbsEta => p.abs_eta(),
             Attribute::Phi => p.phi(),
@@ -432,6 +433,11 @@ pub struct ObjectDefinitions {
 /// each list ordered by decreasing pT. Reused from event to event.
 #[derive(Debug, Clone, Default)]
 pub struct SelectedObjects {
+    /// The definitions the thresholds below were computed for.
+    defs: Option<ObjectDefinitions>,
+    /// (min pT², sinh(max |η|)) for jets, b jets, electrons, muons, taus,
+    /// photons.
+    thresholds: [(f64, f64); 6],
     jets: Vec<P4>,
     bjets: Vec<P4>,
     electrons: Vec<P4>,
@@ -444,11 +450,15 @@ pub struct SelectedObjects {
     sum_et_gev: f64,
 }
 
-fn select_into<'a>(out: &mut Vec<P4>, items: impl Iterator<Item = &'a P4>, acc: &Acceptance) {
-    // pT > min ⇔ pT² > min² (min ≥ 0); |η| < max ⇔ |pz| < pT·sinh(max),
-    // which avoids the inverse hyperbolic sine per object.
-    let min_pt2 = acc.min_pt_gev * acc.min_pt_gev;
-    let sinh_max = acc.max_abs_eta.sinh();
+/// (min pT², sinh(max |η|)) of an acceptance: pT > min ⇔ pT² > min²
+/// (min ≥ 0) and |η| < max ⇔ |pz| < pT·sinh(max), which avoids an inverse
+/// hyperbolic function per object.
+fn threshold(acc: &Acceptance) -> (f64, f64) {
+    (acc.min_pt_gev * acc.min_pt_gev, acc.max_abs_eta.sinh())
+}
+
+fn select_into<'a>(out: &mut Vec<P4>, items: impl Iterator<Item = &'a P4>, t: (f64, f64)) {
+    let (min_pt2, sinh_max) = t;
     out.clear();
     out.extend(
         items
@@ -467,28 +477,32 @@ fn select_into<'a>(out: &mut Vec<P4>, items: impl Iterator<Item = &'a P4>, acc: 
 impl SelectedObjects {
     /// Fills the selection from a reconstructed event.
     pub fn fill(&mut self, reco: &Reco, defs: &ObjectDefinitions) {
-        select_into(&mut self.jets, reco.jets.iter().map(|j| &j.p4), &defs.jets);
+        if self.defs.as_ref() != Some(defs) {
+            self.thresholds = [
+                threshold(&defs.jets),
+                threshold(&defs.bjets),
+                threshold(&defs.electrons),
+                threshold(&defs.muons),
+                threshold(&defs.taus),
+                threshold(&defs.photons),
+            ];
+            self.defs = Some(*defs);
+        }
+        let t = self.thresholds;
+        select_into(&mut self.jets, reco.jets.iter().map(|j| &j.p4), t[0]);
         select_into(
             &mut self.bjets,
             reco.jets.iter().filter(|j| j.b_tagged).map(|j| &j.p4),
-            &defs.bjets,
+            t[1],
         );
         select_into(
             &mut self.electrons,
             reco.electrons.iter().map(|o| &o.p4),
-            &defs.electrons,
+            t[2],
         );
-        select_into(
-            &mut self.muons,
-            reco.muons.iter().map(|o| &o.p4),
-            &defs.muons,
-        );
-        select_into(&mut self.taus, reco.taus.iter().map(|o| &o.p4), &defs.taus);
-        select_into(
-            &mut self.photons,
-            reco.photons.iter().map(|o| &o.p4),
-            &defs.photons,
-        );
+        select_into(&mut self.muons, reco.muons.iter().map(|o| &o.p4), t[3]);
+        select_into(&mut self.taus, reco.taus.iter().map(|o| &o.p4), t[4]);
+        select_into(&mut self.photons, reco.photons.iter().map(|o| &o.p4), t[5]);
         self.leptons.clear();
         self.leptons.extend_from_slice(&self.electrons);
         self.leptons.extend_from_slice(&self.muons);
@@ -514,7 +528,7 @@ impl SelectedObjects {
     }
 
     fn ht_gev(&self) -> f64 {
-        self.jets.iter().map(P4::pt).sum()
+        self.jets.iter().map(|j| j.pt2().sqrt()).sum()
     }
 
     fn min_dphi_jets_met(&self, n: Option<usize>) -> f64 {

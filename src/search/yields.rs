@@ -265,8 +265,11 @@ impl<'s> YieldAccumulator<'s> {
         let reco_jet1 = reco
             .jets
             .iter()
-            .map(|j| j.p4.pt())
-            .fold(None, |m: Option<f64>, pt| Some(m.map_or(pt, |m| m.max(pt))));
+            .map(|j| j.p4.pt2())
+            .fold(None, |m: Option<f64>, pt2| {
+                Some(m.map_or(pt2, |m| m.max(pt2)))
+            })
+            .map(f64::sqrt);
         g.fill(0, Some(truth.met_gev), w);
         g.fill(1, Some(reco.met_gev), w);
         g.fill(2, truth.leading_parton_pt_gev, w);
