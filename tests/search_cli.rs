@@ -100,17 +100,19 @@ fn results_are_identical_on_one_and_two_threads() {
     for threads in ["1", "2"] {
         let out = dir.path().join(threads);
         let out_s = out.to_str().unwrap().to_string();
-        let (code, err) = recast(&[
+        let mut args = vec![
             "--search",
             DEMO,
             "--threads",
             threads,
             "--seed",
             "7",
+            "--separate-processes",
             "--out",
             &out_s,
-            events,
-        ]);
+        ];
+        args.extend(files.iter().map(String::as_str));
+        let (code, err) = recast(&args);
         assert_eq!(code, 0, "{err}");
         let read = |name: &str| std::fs::read(out.join(name)).unwrap();
         outputs.push((
@@ -119,9 +121,9 @@ fn results_are_identical_on_one_and_two_threads() {
             read("distributions.csv"),
         ));
         let json: serde_json::Value = serde_json::from_slice(&read("result.json")).unwrap();
-        let sha = json["provenance"]["event_files"][0]["sha256"]
-            .as_str()
-            .unwrap();
+        let hashed = json["provenance"]["event_files"].as_array().unwrap();
+        assert_eq!(hashed.len(), 3);
+        let sha = hashed[2]["sha256"].as_str().unwrap();
         assert_eq!(sha.len(), 64, "SHA-256 in hex");
         assert_eq!(json["provenance"]["seed"], 7);
     }
