@@ -132,3 +132,77 @@ fn results_are_identical_on_one_and_two_threads() {
         "outputs differ between 1 and 2 threads"
     );
 }
+
+/// Runs recast on one demo file with `extra` options and returns stdout
+/// and the `signal_events` column of yields.csv.
+fn run_demo(extra: &[&str]) -> (String, Vec<f64>) {
+    let events = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/demo-events/tenebris_mmed1500_mdm1.lhe.gz"
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let out_dir = dir.path().to_str().unwrap().to_string();
+    let mut args = vec!["recast", "--search", DEMO, "--out", &out_dir];
+    args.extend_from_slice(extra);
+    args.push(events);
+    let out = Command::new(env!("CARGO_BIN_EXE_recoil"))
+        .args(&args)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let mut r = csv::Reader::from_path(dir.path().join("yields.csv")).unwrap();
+    let col = r
+        .headers()
+        .unwrap()
+        .iter()
+        .position(|h| h == "signal_events")
+        .unwrap();
+    let signal = r
+        .records()
+        .map(|rec| rec.unwrap()[col].parse().unwrap())
+        .collect();
+    (String::from_utf8_lossy(&out.stdout).into_owned(), signal)
+}
+
+#[test]
+fn cross_section_and_luminosity_options_scale_the_signal() {
+    let (nominal_text, nominal) = run_demo(&[]);
+    let (text, _) = run_demo(&["--xsec-pb", "1.0"]);
+    assert!(text.contains("σ = 1.000 pb"), "{text}");
+    // σ override to twice the sample's own, read from the nominal run.
+    let sigma: f64 = nominal_text
+        .split("σ = ")
+        .nth(1)
+        .and_then(|t| t.split(' ').next())
+        .unwrap()
+        .parse()
+        .unwrap();
+    let (_, doubled) = run_demo(&["--xsec-pb", &format!("{}", 2.0 * sigma)]);
+    // The printed σ has 4 digits; compare with that precision.
+    for (d, n) in doubled.iter().zip(&nominal) {
+        assert!(
+            (d - 2.0 * n).abs() <= 1e-3 * n.abs() + 1e-12,
+            "{d} vs 2 × {n}"
+        );
+    }
+    // Projection to 10× the luminosity: s ∝ L, stated in words.
+    let (text, projected) = run_demo(&["--lumi-ifb", "3000"]);
+    assert!(
+        text.contains("projected from 300 fb⁻¹ to 3000 fb⁻¹"),
+        "{text}"
+    );
+    assert!(
+        text.contains("observed counts set to the projected background"),
+        "{text}"
+    );
+    for (p, n) in projected.iter().zip(&nominal) {
+        assert!(
+            (p - 10.0 * n).abs() <= 1e-9 * n.abs() + 1e-12,
+            "{p} vs 10 × {n}"
+        );
+    }
+}
