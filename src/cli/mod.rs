@@ -7,6 +7,7 @@ mod direct;
 mod inspect;
 mod limit;
 mod plot;
+mod recast;
 mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
@@ -23,6 +24,8 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Yields, cut-flows, CLs and limits of one search for one event sample.
+    Recast(Box<recast::RecastArgs>),
     /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
     Translate(translate::TranslateArgs),
     /// Figures (SVG, with their data as CSV) from the files other commands write.
@@ -37,6 +40,7 @@ enum Command {
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Recast(args) => recast::run(*args),
         Command::Translate(args) => translate::run(args),
         Command::Plot(args) => plot::run(args),
         Command::Direct(args) => direct::run(args),
