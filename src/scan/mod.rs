@@ -15,8 +15,10 @@
 pub mod atomic;
 pub mod cache;
 pub mod contour;
+pub mod evaluate;
 pub mod output;
 pub mod plan;
+pub mod products;
 pub mod run;
 pub mod shard;
 

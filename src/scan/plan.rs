@@ -26,7 +26,8 @@ pub enum MediatorKind {
     /// Spin-1 vector mediator (vector couplings to quarks and DM).
     Vector,
     /// Spin-1 axial-vector mediator.
-    AxialVector,
+    #[serde(alias = "axial-vector")]
+    Axial,
     /// Spin-0 scalar mediator with Yukawa-like quark couplings.
     Scalar,
     /// Spin-0 pseudoscalar mediator with Yukawa-like quark couplings.
@@ -38,7 +39,7 @@ impl MediatorKind {
     pub fn name(self) -> &'static str {
         match self {
             Self::Vector => "vector",
-            Self::AxialVector => "axial-vector",
+            Self::Axial => "axial",
             Self::Scalar => "scalar",
             Self::Pseudoscalar => "pseudoscalar",
         }
