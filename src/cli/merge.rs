@@ -29,8 +29,12 @@ pub fn run(args: MergeArgs) -> anyhow::Result<()> {
     // The plan is needed for the whole-scan products; read it (and the
     // inputs it names) before merging anything.
     let first = &args.dirs[0];
-    let manifest =
-        ScanManifest::read(first).with_context(|| format!("shard {}", first.display()))?;
+    let manifest = ScanManifest::read(first).with_context(|| {
+        format!(
+            "{}: not a finished scan output (is the shard complete?)",
+            first.display()
+        )
+    })?;
     let plan = ScanPlan::from_toml_file(&manifest.plan)
         .with_context(|| format!("scan plan {} of the shards", manifest.plan.display()))?;
     let products = PlanProducts::new(&plan).context("preparing the DM–nucleon comparison")?;

@@ -40,12 +40,13 @@ use std::path::PathBuf;
 #[non_exhaustive]
 pub enum ScanError {
     /// Reading or writing a file failed.
-    #[error("{path}: {source}")]
+    #[error("{path}: {cause}")]
     Io {
         /// File or folder.
         path: PathBuf,
-        /// Underlying error.
-        source: std::io::Error,
+        /// Underlying error (part of the message, so not repeated as a
+        /// source).
+        cause: std::io::Error,
     },
     /// The plan or its table of points breaks a rule.
     #[error("{0}")]
@@ -82,10 +83,10 @@ pub enum ScanError {
 
 impl ScanError {
     /// An I/O error on `path`.
-    pub(crate) fn io(path: impl Into<PathBuf>, source: std::io::Error) -> Self {
+    pub(crate) fn io(path: impl Into<PathBuf>, cause: std::io::Error) -> Self {
         Self::Io {
             path: path.into(),
-            source,
+            cause,
         }
     }
 }

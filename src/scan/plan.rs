@@ -93,6 +93,33 @@ pub struct ImportedSpec {
     pub interaction: String,
 }
 
+/// Options of the DM–nucleon comparison and the figures.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, Deserialize)]
+pub struct DmNucleonOptions {
+    /// Name of the nucleon parameter set of the model stage (e.g. `dmwg2016`).
+    pub nucleon_params: String,
+    /// Smallest DM mass of the direct-detection curves [GeV].
+    pub m_min_gev: f64,
+    /// Largest DM mass of the direct-detection curves [GeV].
+    pub m_max_gev: f64,
+    /// Number of masses (log-spaced) of the direct-detection curves.
+    pub n_masses: usize,
+    /// Whether to draw the figures.
+    pub figures: bool,
+}
+
+impl Default for DmNucleonOptions {
+    fn default() -> Self {
+        Self {
+            nucleon_params: "dmwg2016".into(),
+            m_min_gev: 1.0,
+            m_max_gev: 5000.0,
+            n_masses: 60,
+            figures: true,
+        }
+    }
+}
+
 /// One model point of the scan (one data row of the table).
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct ScanPoint {
@@ -145,6 +172,8 @@ pub struct ScanPlan {
     pub output: Option<PathBuf>,
     /// Cache folder named in the plan (resolved), if any.
     pub cache: Option<PathBuf>,
+    /// Options of the DM–nucleon comparison and the figures.
+    pub dm_nucleon: DmNucleonOptions,
     /// Direct-detection experiments to compare with.
     pub direct: Vec<DirectSpec>,
     /// Imported external curves.
@@ -173,10 +202,21 @@ struct PlanFile {
     detector: DetectorSection,
     model: ModelSection,
     stats: Option<StatsSection>,
+    dm_nucleon: Option<DmNucleonSection>,
     #[serde(default)]
     direct: Vec<DirectSection>,
     #[serde(default)]
     imported: Vec<ImportedSection>,
+}
+
+#[derive(Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct DmNucleonSection {
+    nucleon_params: Option<String>,
+    m_min_gev: Option<f64>,
+    m_max_gev: Option<f64>,
+    n_masses: Option<usize>,
+    figures: Option<bool>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -334,6 +374,7 @@ impl ScanPlan {
 
         let (limit, regions) = stats_options(&name, file.stats.as_ref())?;
 
+        let dm_nucleon = dm_nucleon_options(&name, file.dm_nucleon.as_ref())?;
         let mut direct = Vec::new();
         for (i, d) in file.direct.iter().enumerate() {
             let experiment = existing(&format!("[[direct]] #{} experiment", i + 1), &d.experiment)?;
@@ -403,6 +444,7 @@ impl ScanPlan {
             regions,
             output: file.output.as_deref().map(resolve),
             cache: file.cache.as_deref().map(resolve),
+            dm_nucleon,
             direct,
             imported,
             points,
@@ -457,6 +499,38 @@ fn stats_options(
         },
         s.and_then(|s| s.regions).unwrap_or_default(),
     ))
+}
+
+fn dm_nucleon_options(
+    name: &str,
+    s: Option<&DmNucleonSection>,
+) -> Result<DmNucleonOptions, ScanError> {
+    let d = DmNucleonOptions::default();
+    let Some(s) = s else { return Ok(d) };
+    let o = DmNucleonOptions {
+        nucleon_params: s.nucleon_params.clone().unwrap_or(d.nucleon_params),
+        m_min_gev: s.m_min_gev.unwrap_or(d.m_min_gev),
+        m_max_gev: s.m_max_gev.unwrap_or(d.m_max_gev),
+        n_masses: s.n_masses.unwrap_or(d.n_masses),
+        figures: s.figures.unwrap_or(d.figures),
+    };
+    if !(o.m_min_gev.is_finite()
+        && o.m_min_gev > 0.0
+        && o.m_max_gev.is_finite()
+        && o.m_max_gev > o.m_min_gev)
+    {
+        return Err(ScanError::Plan(format!(
+            "{name}: [dm_nucleon] needs 0 < m_min_gev < m_max_gev (GeV), got {} and {}",
+            o.m_min_gev, o.m_max_gev
+        )));
+    }
+    if o.n_masses < 2 {
+        return Err(ScanError::Plan(format!(
+            "{name}: [dm_nucleon] n_masses must be >= 2, got {}",
+            o.n_masses
+        )));
+    }
+    Ok(o)
 }
 
 /// Columns of the points table.
