@@ -3,9 +3,13 @@
 
 use clap::{Parser, Subcommand};
 
+mod direct;
 mod inspect;
+mod limit;
 mod merge;
+mod plot;
 mod scan;
+mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
 /// compare the exclusion with direct detection. Results are estimates, not an
@@ -21,6 +25,14 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
+    Translate(translate::TranslateArgs),
+    /// Figures (SVG, with their data as CSV) from the files other commands write.
+    Plot(plot::PlotArgs),
+    /// Direct detection: recoil spectrum, expected counts, limit curve.
+    Direct(direct::DirectArgs),
+    /// CLs upper limits for counting experiments (exact, asymptotic, pseudo-experiments).
+    Limit(limit::LimitArgs),
     /// A grid of model points in parallel: results table, contours, DM–nucleon curves.
     Scan(scan::ScanArgs),
     /// Combine the output folders of the shards of one scan.
@@ -31,6 +43,10 @@ enum Command {
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Translate(args) => translate::run(args),
+        Command::Plot(args) => plot::run(args),
+        Command::Direct(args) => direct::run(args),
+        Command::Limit(args) => limit::run(args),
         Command::Scan(args) => scan::run(args),
         Command::Merge(args) => merge::run(args),
     }

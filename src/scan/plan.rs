@@ -260,6 +260,7 @@ enum MethodName {
 enum ConstraintName {
     Gaussian,
     LogNormal,
+    Poisson,
 }
 
 #[derive(Debug, Deserialize)]
@@ -490,6 +491,7 @@ fn stats_options(
     let constraint = match s.and_then(|s| s.constraint) {
         None | Some(ConstraintName::Gaussian) => BackgroundConstraint::Gaussian,
         Some(ConstraintName::LogNormal) => BackgroundConstraint::LogNormal,
+        Some(ConstraintName::Poisson) => BackgroundConstraint::Poisson,
     };
     Ok((
         LimitOptions {

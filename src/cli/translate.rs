@@ -1,0 +1,525 @@
+//! `recoil translate`: a simplified-model point or a collider exclusion
+//! boundary → widths, Γ/M, BR(χχ̄), σ_SI / σ_SD.
+
+use anyhow::Context;
+use recoil::model::{
+    self, BoundaryPoint, ColliderCurve, CouplingLimit, CouplingPath, Couplings, Mediator,
+    MediatorKind, ModelError, Nucleon, NucleonCrossSection, NucleonParams, WIDE_WIDTH_OVER_MASS,
+};
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+/// Translate a simplified s-channel mediator model.
+///
+/// Point mode (--mmed and --mdm): partial and total widths, Γ/M, BR(χχ̄)
+/// and the DM–nucleon cross-section (σ_SI for vector and scalar, σ_SD for
+/// axial mediators). Curve mode (--curve FILE): a collider exclusion
+/// boundary (for each m_DM the largest excluded mediator mass) becomes a
+/// limit curve σ(m_DM) in the DM–nucleon plane.
+#[derive(Debug, clap::Args)]
+pub struct TranslateArgs {
+    /// Mediator type: vector, axial, scalar or pseudoscalar.
+    #[arg(long)]
+    pub mediator: String,
+    /// Quark coupling g_q (universal; Yukawa-scaled for scalar and pseudoscalar).
+    #[arg(long, default_value_t = 0.25, allow_negative_numbers = true)]
+    pub gq: f64,
+    /// Dark-matter coupling g_DM.
+    #[arg(long, default_value_t = 1.0, allow_negative_numbers = true)]
+    pub gdm: f64,
+    /// Lepton coupling g_l.
+    #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
+    pub gl: f64,
+    /// Mediator mass M [GeV] (point mode).
+    #[arg(
+        long,
+        conflicts_with = "curve",
+        requires = "mdm",
+        allow_negative_numbers = true
+    )]
+    pub mmed: Option<f64>,
+    /// Dark-matter mass m_DM [GeV] (point mode).
+    #[arg(
+        long,
+        conflicts_with = "curve",
+        requires = "mmed",
+        allow_negative_numbers = true
+    )]
+    pub mdm: Option<f64>,
+    /// Point mode: the upper limit on the signal strength μ obtained at these
+    /// couplings; prints the excluded couplings on three paths (g_q at fixed
+    /// g_DM, g_DM at fixed g_q, g_q = g_DM).
+    #[arg(long, requires = "mmed", allow_negative_numbers = true)]
+    pub mu_limit: Option<f64>,
+    /// Curve mode: CSV with columns m_dm_gev,m_med_limit_gev and optionally
+    /// m_med_limit_exp_gev (masses in GeV) at the given couplings.
+    #[arg(long, required_unless_present = "mmed")]
+    pub curve: Option<PathBuf>,
+    /// Confidence level of the collider boundary (curve mode).
+    #[arg(long, default_value_t = 0.95, allow_negative_numbers = true)]
+    pub cl: f64,
+    /// Target nucleon: proton, neutron or both.
+    #[arg(long, default_value = "both")]
+    pub nucleon: String,
+    /// Nucleon parameter set: dmwg2016 (default) or lattice2015.
+    #[arg(long, default_value = "dmwg2016")]
+    pub nucleon_set: String,
+    /// Write the results to FILE: .csv (a table) or .json (with provenance).
+    #[arg(long)]
+    pub out: Option<PathBuf>,
+}
+
+/// Output file formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Format {
+    Csv,
+    Json,
+}
+
+/// What to compute.
+#[derive(Debug)]
+enum Mode {
+    Point {
+        mediator: Mediator,
+        mu_limit: Option<f64>,
+    },
+    Curve {
+        path: PathBuf,
+        cl: f64,
+    },
+}
+
+/// The validated configuration of one `recoil translate` run.
+#[derive(Debug)]
+struct Config {
+    kind: MediatorKind,
+    couplings: Couplings,
+    nucleons: Vec<Nucleon>,
+    params: NucleonParams,
+    mode: Mode,
+    out: Option<(PathBuf, Format)>,
+}
+
+impl TryFrom<&TranslateArgs> for Config {
+    type Error = anyhow::Error;
+
+    fn try_from(a: &TranslateArgs) -> anyhow::Result<Self> {
+        let kind: MediatorKind = a.mediator.parse().context("--mediator")?;
+        let couplings = Couplings::with_leptons(a.gq, a.gdm, a.gl).context("--gq/--gdm/--gl")?;
+        let nucleons = match a.nucleon.trim().to_ascii_lowercase().as_str() {
+            "both" => Nucleon::BOTH.to_vec(),
+            other => vec![other.parse::<Nucleon>().context("--nucleon")?],
+        };
+        let params = NucleonParams::by_name(&a.nucleon_set).context("--nucleon-set")?;
+        let mode = match (&a.curve, a.mmed, a.mdm) {
+            (Some(path), _, _) => {
+                if !(a.cl > 0.0 && a.cl < 1.0) {
+                    anyhow::bail!("--cl must be in (0, 1), got {}", a.cl);
+                }
+                if kind == MediatorKind::Pseudoscalar {
+                    return Err(ModelError::MomentumSuppressed).context("--curve");
+                }
+                Mode::Curve {
+                    path: path.clone(),
+                    cl: a.cl,
+                }
+            }
+            (None, Some(m_med), Some(m_dm)) => {
+                let mediator =
+                    Mediator::new(kind, m_med, m_dm, couplings).context("--mmed/--mdm")?;
+                if let Some(mu) = a.mu_limit
+                    && !(mu.is_finite() && mu > 0.0)
+                {
+                    anyhow::bail!("--mu-limit must be finite and > 0, got {mu}");
+                }
+                Mode::Point {
+                    mediator,
+                    mu_limit: a.mu_limit,
+                }
+            }
+            _ => anyhow::bail!("give either --mmed and --mdm (point mode) or --curve FILE"),
+        };
+        let out = match &a.out {
+            None => None,
+            Some(p) => {
+                let format = match p.extension().and_then(|e| e.to_str()) {
+                    Some(e) if e.eq_ignore_ascii_case("csv") => Format::Csv,
+                    Some(e) if e.eq_ignore_ascii_case("json") => Format::Json,
+                    _ => anyhow::bail!(
+                        "--out {}: unknown format, the name must end in .csv or .json",
+                        p.display()
+                    ),
+                };
+                Some((p.clone(), format))
+            }
+        };
+        Ok(Config {
+            kind,
+            couplings,
+            nucleons,
+            params,
+            mode,
+            out,
+        })
+    }
+}
+
+/// Runs `recoil translate`.
+pub fn run(args: TranslateArgs) -> anyhow::Result<()> {
+    let cfg = Config::try_from(&args)?;
+    match &cfg.mode {
+        Mode::Point { mediator, mu_limit } => run_point(&cfg, mediator, *mu_limit),
+        Mode::Curve { path, cl } => run_curve(&cfg, path, *cl),
+    }
+}
+
+/// Results of point mode, also the JSON document.
+#[derive(Debug, serde::Serialize)]
+struct PointReport {
+    program: String,
+    caution: &'static str,
+    mediator: MediatorKind,
+    m_med_gev: f64,
+    m_dm_gev: f64,
+    couplings: Couplings,
+    widths: Vec<ChannelWidth>,
+    total_width_gev: f64,
+    width_over_mass: f64,
+    wide: bool,
+    wide_threshold: f64,
+    br_dm: f64,
+    regime: model::ProductionRegime,
+    approximation: &'static str,
+    nucleon_params: &'static str,
+    nucleon_params_source: &'static str,
+    cross_sections: Vec<NucleonCrossSection>,
+    cross_section_note: Option<String>,
+    mu_limit: Option<f64>,
+    coupling_limits: Vec<PathLimit>,
+}
+
+#[derive(Debug, serde::Serialize)]
+struct ChannelWidth {
+    channel: &'static str,
+    width_gev: f64,
+    br: f64,
+}
+
+#[derive(Debug, serde::Serialize)]
+struct PathLimit {
+    path: String,
+    limit: Option<CouplingLimit>,
+    note: Option<String>,
+}
+
+const CAUTION: &str = "estimates within a simplified model; no substitute for an \
+                       experiment's official analysis";
+
+fn run_point(cfg: &Config, m: &Mediator, mu_limit: Option<f64>) -> anyhow::Result<()> {
+    let total = m.total_width_gev();
+    let widths = m
+        .partial_widths_gev()
+        .into_iter()
+        .map(|(ch, w)| ChannelWidth {
+            channel: ch.name(),
+            width_gev: w,
+            br: if total > 0.0 { w / total } else { 0.0 },
+        })
+        .collect();
+    let (cross_sections, cross_section_note) = match cfg
+        .nucleons
+        .iter()
+        .map(|&n| m.sigma_nucleon_cm2(n, &cfg.params))
+        .collect::<Result<Vec<_>, _>>()
+    {
+        Ok(v) => (v, None),
+        Err(e @ ModelError::MomentumSuppressed) => (Vec::new(), Some(e.to_string())),
+        Err(e) => return Err(e.into()),
+    };
+    let coupling_limits = match mu_limit {
+        None => Vec::new(),
+        Some(mu) => {
+            let c = m.couplings();
+            [
+                CouplingPath::QuarkAtFixedDm(c.g_dm()),
+                CouplingPath::DmAtFixedQuark(c.g_q()),
+                CouplingPath::Equal,
+            ]
+            .into_iter()
+            .map(|path| match m.excluded_coupling(mu, path) {
+                Ok(l) => Ok(PathLimit {
+                    path: path.describe(),
+                    limit: Some(l),
+                    note: None,
+                }),
+                Err(e @ ModelError::NoSolution { .. }) => Ok(PathLimit {
+                    path: path.describe(),
+                    limit: None,
+                    note: Some(e.to_string()),
+                }),
+                Err(e) => Err(e),
+            })
+            .collect::<Result<Vec<_>, _>>()?
+        }
+    };
+    let report = PointReport {
+        program: format!("recoil {}", env!("CARGO_PKG_VERSION")),
+        caution: CAUTION,
+        mediator: cfg.kind,
+        m_med_gev: m.m_med_gev(),
+        m_dm_gev: m.m_dm_gev(),
+        couplings: m.couplings(),
+        widths,
+        total_width_gev: total,
+        width_over_mass: m.width_over_mass(),
+        wide: m.is_wide(),
+        wide_threshold: WIDE_WIDTH_OVER_MASS,
+        br_dm: m.br_dm(),
+        regime: m.regime(),
+        approximation: m.regime().approximation(),
+        nucleon_params: cfg.params.name,
+        nucleon_params_source: cfg.params.source,
+        cross_sections,
+        cross_section_note,
+        mu_limit,
+        coupling_limits,
+    };
+    print_point(&report);
+    if let Some((path, format)) = &cfg.out {
+        let bytes = match format {
+            Format::Json => serde_json::to_vec_pretty(&report)?,
+            Format::Csv => point_csv(&report)?,
+        };
+        write_atomic(path, &bytes)?;
+    }
+    Ok(())
+}
+
+fn print_point(r: &PointReport) {
+    let c = r.couplings;
+    println!(
+        "{} mediator: M = {} GeV, m_DM = {} GeV, g_q = {}, g_DM = {}, g_l = {}",
+        r.mediator,
+        r.m_med_gev,
+        r.m_dm_gev,
+        c.g_q(),
+        c.g_dm(),
+        c.g_l()
+    );
+    println!();
+    println!("{:<8} {:>14} {:>12}", "channel", "Γ [GeV]", "BR");
+    for w in &r.widths {
+        println!("{:<8} {:>14.6e} {:>12.6e}", w.channel, w.width_gev, w.br);
+    }
+    println!("{:<8} {:>14.6e} {:>12}", "total", r.total_width_gev, "1");
+    println!();
+    println!("Γ/M       {:.6e}", r.width_over_mass);
+    println!("BR(χχ̄)    {:.6e}", r.br_dm);
+    if r.wide {
+        println!(
+            "warning: Γ/M = {:.3} exceeds {}: the narrow-width picture (Breit–Wigner peak, \
+             σ×BR factorisation, coupling rescaling) is unreliable here",
+            r.width_over_mass, r.wide_threshold
+        );
+    }
+    println!("rescaling: {}", r.approximation);
+    println!();
+    match &r.cross_section_note {
+        Some(note) => println!("{note}"),
+        None => {
+            println!("{:<8} {:>18} {:>12}", "nucleon", "σ [cm²]", "μ_nχ [GeV]");
+            for x in &r.cross_sections {
+                println!(
+                    "{:<8} {:>18.6e} {:>12.6}",
+                    format!("{}", x.nucleon),
+                    x.sigma_cm2,
+                    x.reduced_mass_gev
+                );
+            }
+            if let Some(x) = r.cross_sections.first() {
+                println!(
+                    "(σ_{} at zero momentum transfer; nucleon set {}: {})",
+                    x.kind.short(),
+                    r.nucleon_params,
+                    r.nucleon_params_source
+                );
+            }
+        }
+    }
+    if let Some(mu) = r.mu_limit {
+        println!();
+        println!("excluded couplings for μ_up = {mu} at these couplings:");
+        for l in &r.coupling_limits {
+            match (&l.limit, &l.note) {
+                (Some(x), _) => println!(
+                    "  {:<18} excluded above g = {:.6}  (Γ/M there {:.4}{})",
+                    l.path,
+                    x.g_limit,
+                    x.width_over_mass,
+                    if x.wide { ", wide: unreliable" } else { "" }
+                ),
+                (None, Some(n)) => println!("  {:<18} {n}", l.path),
+                (None, None) => {}
+            }
+        }
+    }
+    println!();
+    println!("note: {CAUTION}");
+}
+
+fn point_csv(r: &PointReport) -> anyhow::Result<Vec<u8>> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(["quantity", "value", "unit"])?;
+    let c = r.couplings;
+    let mut row = |q: &str, v: String, u: &str| w.write_record([q, &v, u]);
+    row("mediator", r.mediator.to_string(), "")?;
+    row("m_med", r.m_med_gev.to_string(), "GeV")?;
+    row("m_dm", r.m_dm_gev.to_string(), "GeV")?;
+    row("g_q", c.g_q().to_string(), "")?;
+    row("g_dm", c.g_dm().to_string(), "")?;
+    row("g_l", c.g_l().to_string(), "")?;
+    for ch in &r.widths {
+        row(
+            &format!("width_{}", ch.channel),
+            ch.width_gev.to_string(),
+            "GeV",
+        )?;
+    }
+    row("total_width", r.total_width_gev.to_string(), "GeV")?;
+    row("width_over_mass", r.width_over_mass.to_string(), "")?;
+    row("br_dm", r.br_dm.to_string(), "")?;
+    for x in &r.cross_sections {
+        row(
+            &format!("sigma_{}_{}", x.kind.short(), x.nucleon),
+            format!("{:e}", x.sigma_cm2),
+            "cm2",
+        )?;
+    }
+    for l in &r.coupling_limits {
+        if let Some(x) = &l.limit {
+            row(&format!("g_limit ({})", l.path), x.g_limit.to_string(), "")?;
+        }
+    }
+    Ok(w.into_inner()?)
+}
+
+/// JSON document of curve mode.
+#[derive(Debug, serde::Serialize)]
+struct CurveReport<'a> {
+    program: String,
+    caution: &'static str,
+    input: String,
+    nucleon_params_source: &'static str,
+    curves: &'a [ColliderCurve],
+}
+
+fn run_curve(cfg: &Config, path: &Path, cl: f64) -> anyhow::Result<()> {
+    let file = std::fs::File::open(path)
+        .with_context(|| format!("opening collider boundary {}", path.display()))?;
+    let boundary: Vec<BoundaryPoint> =
+        model::read_boundary_csv(std::io::BufReader::new(file), &path.display().to_string())?;
+    let curves = cfg
+        .nucleons
+        .iter()
+        .map(|&n| model::collider_curve(cfg.kind, cfg.couplings, n, &cfg.params, cl, &boundary))
+        .collect::<Result<Vec<_>, _>>()
+        .with_context(|| format!("collider boundary {}", path.display()))?;
+    print_curves(&curves);
+    if let Some((out, format)) = &cfg.out {
+        let bytes = match format {
+            Format::Csv => curve_csv(&curves)?,
+            Format::Json => serde_json::to_vec_pretty(&CurveReport {
+                program: format!("recoil {}", env!("CARGO_PKG_VERSION")),
+                caution: CAUTION,
+                input: path.display().to_string(),
+                nucleon_params_source: cfg.params.source,
+                curves: &curves,
+            })?,
+        };
+        write_atomic(out, &bytes)?;
+    }
+    Ok(())
+}
+
+fn print_curves(curves: &[ColliderCurve]) {
+    for c in curves {
+        let k = c.kind.short();
+        println!("{} ({}, nucleon set {})", c.note, c.nucleon, c.params);
+        println!(
+            "{:>12} {:>16} {:>18} {:>16} {:>18}",
+            "m_DM [GeV]",
+            "M_obs [GeV]",
+            format!("σ_{k},obs [cm²]"),
+            "M_exp [GeV]",
+            format!("σ_{k},exp [cm²]")
+        );
+        for p in &c.points {
+            let exp_m = p.m_med_limit_exp_gev.map_or("-".into(), |v| format!("{v}"));
+            let exp_s = p.sigma_exp_cm2.map_or("-".into(), |v| format!("{v:.6e}"));
+            println!(
+                "{:>12} {:>16} {:>18.6e} {:>16} {:>18}",
+                p.m_dm_gev, p.m_med_limit_obs_gev, p.sigma_obs_cm2, exp_m, exp_s
+            );
+        }
+        println!();
+    }
+    println!("note: {CAUTION}");
+}
+
+fn curve_csv(curves: &[ColliderCurve]) -> anyhow::Result<Vec<u8>> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record([
+        "m_dm_gev",
+        "m_med_limit_obs_gev",
+        "m_med_limit_exp_gev",
+        "nucleon",
+        "scattering",
+        "sigma_obs_cm2",
+        "sigma_exp_cm2",
+        "cl",
+    ])?;
+    for c in curves {
+        for p in &c.points {
+            let opt = |v: Option<f64>| v.map_or(String::new(), |x| format!("{x:e}"));
+            w.write_record([
+                p.m_dm_gev.to_string(),
+                p.m_med_limit_obs_gev.to_string(),
+                p.m_med_limit_exp_gev
+                    .map_or(String::new(), |x| x.to_string()),
+                c.nucleon.to_string(),
+                c.kind.short().to_string(),
+                format!("{:e}", p.sigma_obs_cm2),
+                opt(p.sigma_exp_cm2),
+                c.cl.to_string(),
+            ])?;
+        }
+    }
+    Ok(w.into_inner()?)
+}
+
+/// Writes `bytes` to a temporary file in the folder of `path`, then renames
+/// it over `path`, so no partial output is ever left behind.
+fn write_atomic(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
+    let dir = match path.parent() {
+        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let name = path
+        .file_name()
+        .with_context(|| format!("--out {}: not a file name", path.display()))?;
+    let tmp = dir.join(format!(
+        ".{}.tmp{}",
+        name.to_string_lossy(),
+        std::process::id()
+    ));
+    let result = (|| -> std::io::Result<()> {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        std::fs::rename(&tmp, path)
+    })();
+    if result.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    result.with_context(|| format!("writing {}", path.display()))
+}
