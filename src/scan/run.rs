@@ -227,53 +227,74 @@ pub fn run_scan(
             }
         };
 
-        let results: Vec<Result<(PointResult, bool), ScanError>> = points
-            .par_iter()
-            .zip(hashes.par_iter())
-            .map(|(point, file_hashes)| {
-                let fingerprint = point_fingerprint(plan, point, file_hashes);
-                if let Ok(Some(prev)) = read_point(out, point.index)
-                    && prev.fingerprint == fingerprint
-                {
+        // Points finished by an earlier run with the same inputs.
+        let fingerprints: Vec<String> = points
+            .iter()
+            .zip(&hashes)
+            .map(|(p, h)| point_fingerprint(plan, p, h))
+            .collect();
+        let mut results: Vec<Option<Result<(PointResult, bool), ScanError>>> = points
+            .iter()
+            .zip(&fingerprints)
+            .map(|(p, fp)| match read_point(out, p.index) {
+                Ok(Some(prev)) if &prev.fingerprint == fp => {
                     report(0);
-                    return Ok((prev, true));
+                    Some(Ok((prev, true)))
                 }
-                let ctx = PointContext {
-                    plan,
-                    file_hashes,
-                    cache: cache.as_ref(),
-                };
-                let outcome =
-                    evaluator
-                        .evaluate(point, &ctx)
-                        .map_err(|message| ScanError::Point {
-                            index: point.index,
-                            label: point.label.clone(),
-                            message,
-                        })?;
-                let result = PointResult {
-                    index: point.index,
-                    label: point.label.clone(),
-                    m_med_gev: point.m_med_gev,
-                    m_dm_gev: point.m_dm_gev,
-                    couplings: point.couplings,
-                    width_over_mass: outcome.width_over_mass,
-                    best_region: outcome.best_region,
-                    signal_events: outcome.signal_events,
-                    signal_mc_stat: outcome.signal_mc_stat,
-                    cls_mu1: outcome.cls_mu1,
-                    mu_up_obs: outcome.mu_up_obs,
-                    mu_up_exp: outcome.mu_up_exp,
-                    warnings: outcome.warnings,
-                    events_read: outcome.events_read,
-                    yields_from_cache: outcome.yields_from_cache,
-                    fingerprint,
-                };
-                write_point(out, &result)?;
-                report(result.events_read);
-                Ok((result, false))
+                _ => None,
             })
             .collect();
+        let pending: Vec<usize> = (0..points.len())
+            .filter(|&k| results[k].is_none())
+            .collect();
+
+        // The others, as many at a time as there are threads: each point
+        // also runs in parallel inside (event chunks), and bounding the
+        // points in flight bounds memory whatever the size of the scan.
+        let evaluate = |k: usize| -> Result<(PointResult, bool), ScanError> {
+            let point = points[k];
+            let ctx = PointContext {
+                plan,
+                file_hashes: &hashes[k],
+                cache: cache.as_ref(),
+            };
+            let outcome = evaluator
+                .evaluate(point, &ctx)
+                .map_err(|message| ScanError::Point {
+                    index: point.index,
+                    label: point.label.clone(),
+                    message,
+                })?;
+            let result = PointResult {
+                index: point.index,
+                label: point.label.clone(),
+                m_med_gev: point.m_med_gev,
+                m_dm_gev: point.m_dm_gev,
+                couplings: point.couplings,
+                width_over_mass: outcome.width_over_mass,
+                best_region: outcome.best_region,
+                signal_events: outcome.signal_events,
+                signal_mc_stat: outcome.signal_mc_stat,
+                cls_mu1: outcome.cls_mu1,
+                mu_up_obs: outcome.mu_up_obs,
+                mu_up_exp: outcome.mu_up_exp,
+                warnings: outcome.warnings,
+                events_read: outcome.events_read,
+                yields_from_cache: outcome.yields_from_cache,
+                fingerprint: fingerprints[k].clone(),
+            };
+            write_point(out, &result)?;
+            report(result.events_read);
+            Ok((result, false))
+        };
+        for batch in pending.chunks(rayon::current_num_threads().max(1)) {
+            let done: Vec<_> = batch.par_iter().map(|&k| evaluate(k)).collect();
+            for (&k, r) in batch.iter().zip(done) {
+                results[k] = Some(r);
+            }
+        }
+        // invariant: every point was either resumed or evaluated above.
+        let results: Vec<_> = results.into_iter().map(|r| r.unwrap()).collect();
 
         let mut rows = Vec::with_capacity(results.len());
         let (mut resumed, mut from_cache, mut events_read) = (0, 0, 0);
