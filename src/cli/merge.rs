@@ -48,6 +48,6 @@ pub fn run(args: MergeArgs) -> anyhow::Result<()> {
     );
     print_results(&summary.rows, plan.limit.cl);
     print_warnings(&summary.warnings);
-    print_outputs(&args.out, true);
+    print_outputs(&args.out);
     Ok(())
 }

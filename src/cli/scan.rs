@@ -104,7 +104,7 @@ pub fn run(args: ScanArgs) -> anyhow::Result<()> {
         summary.events_read as f64 / seconds.max(1e-9)
     );
     print_warnings(&summary.warnings);
-    print_outputs(&out, shard.count() == 1);
+    print_outputs(&out);
     Ok(())
 }
 
@@ -167,16 +167,21 @@ pub(super) fn print_warnings(warnings: &[String]) {
     }
 }
 
-/// Lists the files written into `out`.
-pub(super) fn print_outputs(out: &Path, complete: bool) {
-    let mut names = vec!["results.csv", "result.json", "points/"];
-    if complete {
-        names.extend(["contours.csv", "dm_nucleon.csv"]);
-    }
-    let listed: Vec<String> = names
-        .iter()
-        .filter(|n| out.join(n.trim_end_matches('/')).exists())
-        .map(|n| n.to_string())
-        .collect();
-    println!("wrote {}: {}", out.display(), listed.join(", "));
+/// Lists the files written into `out` (folders marked with `/`).
+pub(super) fn print_outputs(out: &Path) {
+    let mut names: Vec<String> = std::fs::read_dir(out)
+        .map(|entries| {
+            entries
+                .filter_map(Result::ok)
+                .map(|e| {
+                    let name = e.file_name().to_string_lossy().into_owned();
+                    let dir = e.file_type().is_ok_and(|t| t.is_dir());
+                    if dir { format!("{name}/") } else { name }
+                })
+                .filter(|n| !n.starts_with('.'))
+                .collect()
+        })
+        .unwrap_or_default();
+    names.sort();
+    println!("wrote {}: {}", out.display(), names.join(", "));
 }
