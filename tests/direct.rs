@@ -434,8 +434,9 @@ fn poisson_limits_with_background() {
         assert!((got - s).abs() < 6e-5, "n {n} b {b}: {got}");
     }
     // CLs for n = 0 is e^{−s}, so s_up = ln 10 at 90 % for every b
-    // (REFERENCES.md §1, Helene formula, memory).
-    for b in [0.0, 0.5, 5.0, 50.0] {
+    // (REFERENCES.md §1, Helene formula, memory), also where P(0 | b)
+    // underflows (b = 10⁴).
+    for b in [0.0, 0.5, 5.0, 50.0, 1e4] {
         let got = poisson_upper_limit(0, b, 0.9, PoissonMethod::Cls).unwrap();
         assert!((got - 10f64.ln()).abs() < 1e-9, "b {b}: {got}");
     }
@@ -444,6 +445,8 @@ fn poisson_limits_with_background() {
         (3, 1.5, 0.9, PoissonMethod::Classical, 5.180_783),
         (5, 2.0, 0.9, PoissonMethod::Classical, 7.274_674),
         (2, 1.0, 0.9, PoissonMethod::Cls, 4.442_913),
+        // The shipped lxe-demo counts (n = 3, b = 3.4 events).
+        (3, 3.4, 0.9, PoissonMethod::Cls, 4.187_364),
     ];
     for (n, b, cl, method, s) in cases {
         let got = poisson_upper_limit(n, b, cl, method).unwrap();
@@ -839,8 +842,7 @@ fn experiment_toml_errors_name_the_file() {
 
 #[test]
 fn poisson_cdf_for_large_counts() {
-    // scipy 1.17.1 stats.poisson.cdf: sum branch (n = 10⁴) and incomplete-gamma
-    // branch (n = 2×10⁴).
+    // scipy 1.17.1 stats.poisson.cdf at n = 10⁴ and n = 2×10⁴.
     assert!(
         rel(
             recoil::direct::poisson_cdf(10_000, 10_050.0),

@@ -69,6 +69,96 @@ fn curve_mode_writes_a_readable_curve() {
     }
 }
 
+/// A CSV cell of a cross-section: scientific notation (`d[.ddd]e±x`, at
+/// most 17 significant digits) or `inf` (formats.md).
+fn is_scientific(cell: &str) -> bool {
+    if cell == "inf" {
+        return true;
+    }
+    let Some((mantissa, exponent)) = cell.split_once('e') else {
+        return false;
+    };
+    let digits: String = mantissa.chars().filter(char::is_ascii_digit).collect();
+    let lead = mantissa.split('.').next().unwrap_or("");
+    lead.len() == 1
+        && (1..=17).contains(&digits.len())
+        && exponent.trim_start_matches('-').parse::<u32>().is_ok()
+}
+
+#[test]
+fn cross_sections_are_written_in_scientific_notation() {
+    let dir = tempfile::tempdir().unwrap();
+    let first = dir.path().join("first.csv");
+    let second = dir.path().join("second.csv");
+    let lxe = example("lxe-demo.toml");
+    let args = |out: &Path| {
+        vec![
+            "curve".to_string(),
+            "--points".into(),
+            "12".into(),
+            "--experiment".into(),
+            text(&lxe).into(),
+            "--out".into(),
+            text(out).into(),
+        ]
+    };
+    let first_args = args(&first);
+    let stdout = run_ok(&first_args.iter().map(String::as_str).collect::<Vec<_>>());
+    let mut second_args = args(&second);
+    second_args.extend(["--compare".to_string(), text(&first).into()]);
+    run_ok(&second_args.iter().map(String::as_str).collect::<Vec<_>>());
+
+    let mut rdr = csv::Reader::from_path(&second).unwrap();
+    let header = rdr.headers().unwrap().clone();
+    let col = |name: &str| header.iter().position(|h| h == name).unwrap();
+    let rows: Vec<csv::StringRecord> = rdr.records().map(Result::unwrap).collect();
+    assert_eq!(rows.len(), 12);
+    for row in &rows {
+        for name in [
+            "sigma_cm2",
+            "sigma_observed_cm2",
+            "sigma_expected_cm2",
+            "events_per_cm2",
+            "sigma_compare_cm2",
+        ] {
+            let cell = &row[col(name)];
+            assert!(is_scientific(cell), "{name}: {cell:?}");
+        }
+        // The comparison curve is this one, read back at its own masses, so
+        // the shortest round-trip digits reproduce the cell exactly.
+        assert_eq!(&row[col("sigma_compare_cm2")], &row[col("sigma_cm2")]);
+    }
+    // Human-readable table: 4 significant digits in scientific form.
+    let table_row = stdout
+        .lines()
+        .skip_while(|l| !l.contains("σ_obs [cm²]"))
+        .nth(1)
+        .unwrap();
+    let cells: Vec<&str> = table_row.split_whitespace().collect();
+    for cell in &cells[1..] {
+        assert!(
+            *cell == "inf" || (is_scientific(cell) && cell.split_once('e').unwrap().0.len() == 5),
+            "{table_row}"
+        );
+    }
+
+    // Counts mode writes the given σ = 1e-44 cm² back as typed.
+    let counts = dir.path().join("counts.csv");
+    run_ok(&[
+        "counts",
+        "--mass-gev",
+        "100",
+        "--sigma-cm2",
+        "1e-44",
+        "--experiment",
+        text(&lxe),
+        "--out",
+        text(&counts),
+    ]);
+    let csv = std::fs::read_to_string(&counts).unwrap();
+    assert_eq!(csv.lines().nth(1).unwrap().split(',').nth(1), Some("1e-44"));
+}
+
 #[test]
 fn counts_and_spectrum_modes_run() {
     let dir = tempfile::tempdir().unwrap();

@@ -137,6 +137,10 @@ fn curve_mode_writes_csv() {
     // g_DM = 1, M = 2000 GeV, m_χ = 100 GeV, proton: 3.7650562941×10⁻⁴² cm².
     let s: f64 = rows[0][5].parse().unwrap();
     assert!(rel(s, 3.765_056_294_1e-42) < 1e-9, "{s}");
+    // Written in scientific notation (formats.md), and the table shows the
+    // same value to 4 significant digits.
+    assert!(rows[0][5].ends_with("e-42"), "{}", &rows[0][5]);
+    assert!(text.contains(" 3.765e-42 "), "{text}");
     assert_eq!(&rows[1][6], "", "no expected limit given");
 }
 

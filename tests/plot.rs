@@ -545,6 +545,18 @@ fn dm_nucleon_cli_picks_interaction_and_imports() {
     let csv = std::fs::read_to_string(dir.path().join("dmn.csv")).unwrap();
     assert!(csv.starts_with("curve,source,cl,interaction,m_dm_gev,sigma_cm2\n"));
     assert_eq!(csv.lines().count(), 1 + 1 + 4);
+    // Cross-sections in scientific notation, shortest digits: the input
+    // files' own values (dm_nucleon_mixed.csv, direct_curve.csv) come back
+    // as written there.
+    let sigmas: Vec<&str> = csv
+        .lines()
+        .skip(1)
+        .map(|l| l.rsplit(',').next().unwrap())
+        .collect();
+    assert_eq!(sigmas, ["2.1e-42", "3e-41", "1e-44", "1e-46", "3e-46"]);
+    // The figure's table reads back with the plot reader.
+    let back = data::read_dm_nucleon(&dir.path().join("dmn.csv")).unwrap();
+    assert_eq!(back.iter().map(|c| c.points.len()).sum::<usize>(), 5);
 }
 
 #[test]

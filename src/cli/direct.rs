@@ -387,7 +387,7 @@ fn counts(args: CountsArgs) -> anyhow::Result<()> {
         let n = exp.expected_counts(m, args.sigma_cm2, args.interaction)?;
         println!("{m:>14}  {n:>18.6e}");
         text.push_str(&format!(
-            "{m},{},{},{n},{},{}\n",
+            "{m},{:e},{},{n},{},{}\n",
             args.sigma_cm2,
             args.interaction,
             exp.background_events(),
@@ -439,7 +439,7 @@ fn curve(args: CurveArgs) -> anyhow::Result<()> {
     );
     for i in sample_indices(masses.len(), 15) {
         println!(
-            "{:>12.4}  {:>16.4e}  {:>16.4e}  {:>16.4e}",
+            "{:>12.4}  {:>16.3e}  {:>16.3e}  {:>16.3e}",
             masses[i], observed[i].sigma_cm2, expected[i].sigma_cm2, observed[i].events_per_cm2
         );
     }
@@ -449,7 +449,7 @@ fn curve(args: CurveArgs) -> anyhow::Result<()> {
         .min_by(|a, b| a.sigma_cm2.total_cmp(&b.sigma_cm2))
     {
         println!(
-            "strongest {} limit: σ = {:.4e} cm² at m_χ = {:.4} GeV",
+            "strongest {} limit: σ = {:.3e} cm² at m_χ = {:.4} GeV",
             args.limit.label(),
             best.sigma_cm2,
             best.m_dm_gev
@@ -466,7 +466,7 @@ fn curve(args: CurveArgs) -> anyhow::Result<()> {
         for i in 0..masses.len() {
             let p: CurvePoint = chosen(i);
             text.push_str(&format!(
-                "{},{},{},{},{},{},{},{},{},{}",
+                "{},{:e},{},{:e},{:e},{:e},{},{},{},{}",
                 p.m_dm_gev,
                 p.sigma_cm2,
                 p.expected_counts_at_sigma,
@@ -481,7 +481,7 @@ fn curve(args: CurveArgs) -> anyhow::Result<()> {
             if let Some(c) = &compare {
                 text.push(',');
                 if let Some(s) = interpolate_curve(c, p.m_dm_gev) {
-                    text.push_str(&s.to_string());
+                    text.push_str(&format!("{s:e}"));
                 }
             }
             text.push('\n');

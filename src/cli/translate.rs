@@ -330,7 +330,7 @@ fn print_point(r: &PointReport) {
             println!("{:<8} {:>18} {:>12}", "nucleon", "σ [cm²]", "μ_nχ [GeV]");
             for x in &r.cross_sections {
                 println!(
-                    "{:<8} {:>18.6e} {:>12.6}",
+                    "{:<8} {:>18.3e} {:>12.6}",
                     format!("{}", x.nucleon),
                     x.sigma_cm2,
                     x.reduced_mass_gev
@@ -455,9 +455,9 @@ fn print_curves(curves: &[ColliderCurve]) {
         );
         for p in &c.points {
             let exp_m = p.m_med_limit_exp_gev.map_or("-".into(), |v| format!("{v}"));
-            let exp_s = p.sigma_exp_cm2.map_or("-".into(), |v| format!("{v:.6e}"));
+            let exp_s = p.sigma_exp_cm2.map_or("-".into(), |v| format!("{v:.3e}"));
             println!(
-                "{:>12} {:>16} {:>18.6e} {:>16} {:>18}",
+                "{:>12} {:>16} {:>18.3e} {:>16} {:>18}",
                 p.m_dm_gev, p.m_med_limit_obs_gev, p.sigma_obs_cm2, exp_m, exp_s
             );
         }

@@ -81,6 +81,15 @@ pub enum DirectError {
         /// The parser's message (with line and column).
         reason: Box<toml::de::Error>,
     },
+    /// The statistics stage rejected a limit computation.
+    #[error("{context}: {source}")]
+    Stats {
+        /// What was computed, with its inputs and units.
+        context: String,
+        /// The statistics stage's error.
+        #[source]
+        source: crate::stats::StatsError,
+    },
     /// A CSV file breaks a rule.
     #[error("{}: line {line}: {message}", path.display())]
     Csv {

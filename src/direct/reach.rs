@@ -5,16 +5,19 @@
 //! Fed by [`crate::direct::experiment`]; read by `recoil direct`,
 //! [`crate::scan`] and [`crate::plot`].
 //!
-//! The Poisson limit lives in one function, [`poisson_upper_limit`], so it
-//! can later be routed to the statistics stage's exact method.
+//! The Poisson limit lives in one function, [`poisson_upper_limit`]: its
+//! CLs variant and the Poisson cumulative probability are the statistics
+//! stage's exact method ([`crate::stats::event_limit`],
+//! [`crate::stats::poisson::poisson_cdf`]); the classical (Neyman) variant,
+//! which the statistics stage does not offer, is solved here.
 
 use std::path::Path;
 
 use rayon::prelude::*;
-use statrs::function::gamma::ln_gamma;
 
 use super::experiment::read_two_columns;
 use super::{DirectError, Experiment, Interaction, require_non_negative};
+use crate::stats::{BackgroundConstraint, LimitOptions, Method};
 
 /// How an upper limit on a Poisson signal with known background is built.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
@@ -55,32 +58,7 @@ impl std::str::FromStr for PoissonMethod {
     }
 }
 
-/// Poisson cumulative probability P(k ≤ n | μ) = Σ_{k=0}^{n} e^{−μ} μ^k / k!,
-/// summed term by term in a fixed order for n ≤ 10⁴, and as the regularised
-/// upper incomplete gamma function Q(n+1, μ) beyond.
-///
-/// # Units
-/// μ in events (≥ 0); result a probability.
-///
-/// # References
-/// P(k ≤ n | μ) = Q(n+1, μ): M. Abramowitz, I. A. Stegun, Handbook of
-/// Mathematical Functions (1964), Eq. 26.4.21 (memory).
-pub fn poisson_cdf(n: u64, mu: f64) -> f64 {
-    if mu <= 0.0 {
-        return 1.0;
-    }
-    if n > 10_000 {
-        return statrs::function::gamma::checked_gamma_ur(n as f64 + 1.0, mu).unwrap_or(f64::NAN);
-    }
-    let ln_mu = mu.ln();
-    let sum: f64 = (0..=n)
-        .map(|k| {
-            let k = k as f64;
-            (-mu + k * ln_mu - ln_gamma(k + 1.0)).exp()
-        })
-        .sum();
-    sum.min(1.0)
-}
+pub use crate::stats::poisson::poisson_cdf;
 
 /// Exact upper limit on the signal mean s for n observed events and a known
 /// expected background b.
@@ -91,7 +69,11 @@ pub fn poisson_cdf(n: u64, mu: f64) -> f64 {
 /// - CLs: P(n | s_up + b) / P(n | b) = α.
 ///
 /// For b = 0 both give the classical Poisson limits (2.303 at 90 % CL for
-/// n = 0). Solved by bisection to 10⁻¹² relative.
+/// n = 0). The CLs limit is the statistics stage's exact method
+/// ([`crate::stats::event_limit`] with [`Method::Exact`], Brent's method to
+/// 10⁻¹⁰ events); the classical limit, which the statistics stage does not
+/// offer, is solved here by bisection to 10⁻¹² relative, with the same
+/// Poisson cumulative probability ([`poisson_cdf`]).
 ///
 /// # Units
 /// b and the result in events.
@@ -114,22 +96,43 @@ pub fn poisson_upper_limit(
             format!("cl must be in (0, 1), got {cl}"),
         ));
     }
-    let alpha = 1.0 - cl;
-    let p_b = poisson_cdf(observed, background);
-    let excess = |s: f64| -> f64 {
-        let p = poisson_cdf(observed, s + background);
-        match method {
-            PoissonMethod::Classical => p - alpha,
-            PoissonMethod::Cls => p / p_b - alpha,
-        }
+    match method {
+        PoissonMethod::Cls => cls_upper_limit(observed, background, cl),
+        PoissonMethod::Classical => classical_upper_limit(observed, background, 1.0 - cl),
+    }
+}
+
+/// Exact CLs limit on the signal events from the statistics stage: the
+/// limit on μ for a signal of one event with known background.
+fn cls_upper_limit(observed: u64, background: f64, cl: f64) -> Result<f64, DirectError> {
+    let opts = LimitOptions {
+        cl,
+        method: Method::Exact,
+        constraint: BackgroundConstraint::Gaussian,
     };
-    if excess(0.0).is_nan() {
+    crate::stats::event_limit(observed, background, 0.0, &opts)
+        .map(|limit| limit.mu_up_observed)
+        .map_err(|source| DirectError::Stats {
+            context: format!(
+                "poisson upper limit (CLs, n = {observed}, b = {background} events, cl = {cl})"
+            ),
+            source,
+        })
+}
+
+/// Classical (Neyman) limit: the s ≥ 0 with P(k ≤ n | s + b) = α, or 0 when
+/// P(k ≤ n | b) ≤ α; bisection to 10⁻¹² relative.
+fn classical_upper_limit(observed: u64, background: f64, alpha: f64) -> Result<f64, DirectError> {
+    let ctx = "poisson upper limit";
+    let excess = |s: f64| poisson_cdf(observed, s + background) - alpha;
+    let at_zero = excess(0.0);
+    if at_zero.is_nan() {
         return Err(DirectError::invalid(
             ctx,
             format!("P(k <= {observed} | b = {background}) cannot be evaluated"),
         ));
     }
-    if excess(0.0) <= 0.0 {
+    if at_zero <= 0.0 {
         return Ok(0.0);
     }
     let n = observed as f64;

@@ -156,27 +156,27 @@ pub fn truth_met_xy(event: &Event, invisible: &InvisibleSet) -> [f64; 2] {
 }
 
 // ---------------------------------------------------------------------------
-// CONTRACT of the reader (signatures used by later stages; bodies under
-// construction).
+// The reader: header and `<init>` (init.rs), the event-body hot path
+// (parse.rs, number.rs), gzip input (gzip.rs), the parallel pass
+// (source.rs), the weight convention (weights.rs), the inspect summary
+// (census.rs).
 // ---------------------------------------------------------------------------
 
-/// Errors of the event stage. Messages name the file, the event number and,
-/// where possible, the line number, and the rule broken.
-#[derive(Debug, thiserror::Error)]
-#[non_exhaustive]
-pub enum EventError {
-    /// Reading the file failed.
-    #[error("{path}: {source}")]
-    Io {
-        /// File.
-        path: std::path::PathBuf,
-        /// Underlying error.
-        source: std::io::Error,
-    },
-    /// The file breaks the LHEF format or a rule of the reader.
-    #[error("{0}")]
-    Format(String),
-}
+mod census;
+mod error;
+mod gzip;
+mod init;
+mod number;
+mod parse;
+mod source;
+mod weights;
+
+pub use census::{Census, CensusChunk, Inspection, Quantiles, inspect_sample};
+pub use error::EventError;
+pub use init::{FileInfo, ProcessInfo, sqrt_s_gev};
+pub use number::parse_f64;
+pub use source::{BLOCK_BYTES, EventSource, MAX_HEADER_BYTES, SampleInfo, read_file_info};
+pub use weights::{FileSummary, ProcessSummary, SampleSummary, idwtup_description};
 
 /// How several files of one sample are combined.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
@@ -205,77 +205,4 @@ pub struct ChunkContext {
     pub file_index: usize,
     /// Index (0-based, within its file) of the chunk's first event.
     pub first_event_index: u64,
-}
-
-/// What the headers and `<init>` blocks of a sample's files say.
-#[derive(Debug, Clone, PartialEq, Default, serde::Serialize)]
-pub struct SampleInfo {
-    /// Names of the per-event weight variations, in the order of
-    /// [`Event::weights`]; empty when the sample has none.
-    pub weight_names: Vec<String>,
-}
-
-/// What a full pass over a sample found; turns weights into pb.
-#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
-pub struct SampleSummary {
-    /// Number of events read, all files.
-    pub n_events: u64,
-}
-
-impl SampleSummary {
-    /// Factor f [pb per unit of XWGTUP] for events of file `file_index` and
-    /// process `process_id`, such that Σ f·XWGTUP over any subset of events
-    /// is that subset's cross-section in pb under the sample's convention.
-    pub fn weight_to_pb(&self, _file_index: usize, _process_id: i32) -> f64 {
-        0.0
-    }
-
-    /// The sample's cross-section and its uncertainty [pb].
-    pub fn cross_section_pb(&self) -> (f64, f64) {
-        (0.0, 0.0)
-    }
-}
-
-/// A sample of one or more event files, opened and validated up to the
-/// first event, ready to stream.
-#[derive(Debug)]
-pub struct EventSource {
-    info: SampleInfo,
-}
-
-impl EventSource {
-    /// Opens every file, reads and validates its header and `<init>` block.
-    pub fn open<P: AsRef<std::path::Path>>(
-        paths: &[P],
-        _opts: ReadOptions,
-    ) -> Result<Self, EventError> {
-        let _ = paths;
-        Err(EventError::Format("event reader under construction".into()))
-    }
-
-    /// Header information of the sample.
-    pub fn info(&self) -> &SampleInfo {
-        &self.info
-    }
-
-    /// Streams every event once, in constant memory, on all cores.
-    ///
-    /// Files are cut into chunks at event boundaries that depend only on the
-    /// file content, never on the number of threads. `map` runs on worker
-    /// threads, one call per chunk; `consume` receives the results strictly
-    /// in file and chunk order. `progress` is called with the number of
-    /// bytes read so far. The first error in file order stops the pass.
-    pub fn for_each_chunk<T, M, C>(
-        self,
-        _map: M,
-        _consume: C,
-        _progress: Option<&(dyn Fn(u64) + Sync)>,
-    ) -> Result<SampleSummary, EventError>
-    where
-        T: Send,
-        M: Fn(&ChunkContext, &[Event]) -> T + Sync,
-        C: FnMut(T),
-    {
-        Err(EventError::Format("event reader under construction".into()))
-    }
 }

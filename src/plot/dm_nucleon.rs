@@ -13,7 +13,7 @@ use super::canvas::{
     Axis, LegendEntry, Sample, draw_axes, draw_line, draw_panel, figure_height, render_svg,
     split_charts,
 };
-use super::output::{Table, num, write_figure};
+use super::output::{Table, num, sci, write_figure};
 use super::style::{CHART_WIDTH, PANEL_WIDTH, series_style};
 use super::{FigureFiles, Labels, PlotError, cl_text};
 
@@ -195,7 +195,7 @@ pub(crate) fn dm_nucleon_table(curves: &[Curve]) -> Table {
                 num(c.cl),
                 c.interaction.as_str().into(),
                 num(m),
-                num(s),
+                sci(s),
             ]);
         }
     }

@@ -53,6 +53,12 @@ pub(crate) fn num(v: f64) -> String {
     format!("{v}")
 }
 
+/// Formats a cross-section \[cm²\] for CSV: scientific notation with the
+/// shortest digits that round-trip (`6.8e-46`; `inf` for no limit).
+pub(crate) fn sci(v: f64) -> String {
+    format!("{v:e}")
+}
+
 /// The CSV path beside an SVG path, after checking the `.svg` extension.
 pub(crate) fn paths_for(svg: &Path) -> Result<FigureFiles, PlotError> {
     let is_svg = svg

@@ -1,0 +1,553 @@
+//! The zero-copy hot path: parses a chunk of event text (whole `<event>`
+//! blocks, cut at event boundaries by [`super::source`]) into [`Event`]s,
+//! checking every rule of the event body.
+//!
+//! Event layout (hep-ph/0609017, Sec. 2): a line `NUP IDPRUP XWGTUP SCALUP
+//! AQEDUP AQCDUP`, then NUP particle lines of 13 columns `IDUP ISTUP
+//! MOTHUP(1) MOTHUP(2) ICOLUP(1) ICOLUP(2) PUP(1..5) VTIMUP SPINUP`, then
+//! optional information, which may hold the LHEF 3.0 weights `<rwgt>` with
+//! `<wgt id=…>` lines or a `<weights>` list.
+
+use super::init::{FileInfo, attribute, lossy as show, opens_tag};
+use super::number::{Cursor, fields, parse_f64, parse_i32, trim};
+use super::{Event, Particle};
+use crate::kinematics::P4;
+
+/// Per-process weight sums of a chunk, in order of first appearance.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub(crate) struct ProcessSums {
+    pub process_id: i32,
+    pub n: u64,
+    pub sum_w: f64,
+    pub sum_w2: f64,
+    pub n_negative: u64,
+}
+
+/// Result of parsing one chunk.
+#[derive(Debug, Default)]
+pub(crate) struct ParsedChunk {
+    pub events: Vec<Event>,
+    pub sums: Vec<ProcessSums>,
+    /// True when the chunk holds `</LesHouchesEvents>`.
+    pub end_tag: bool,
+    /// Lines in the chunk.
+    pub n_lines: u64,
+}
+
+/// Where a chunk sits in its file, for error messages.
+pub(crate) struct ChunkPlace {
+    /// Line number (1-based) of the chunk's first line.
+    pub first_line: u64,
+    /// Number (0-based) of the chunk's first event within the file.
+    pub first_event: u64,
+    /// True for the file's last chunk (the end tag must be in it).
+    pub last: bool,
+}
+
+/// A rule broken inside a chunk.
+#[derive(Debug)]
+pub(crate) struct BodyFault {
+    /// Event number (1-based, within the file), if inside an event.
+    pub event: Option<u64>,
+    pub line: u64,
+    pub rule: String,
+}
+
+struct Lines<'a> {
+    rest: &'a [u8],
+    line: u64,
+}
+
+impl<'a> Lines<'a> {
+    #[inline]
+    fn next_line(&mut self) -> Option<&'a [u8]> {
+        if self.rest.is_empty() {
+            return None;
+        }
+        let (l, r) = match memchr::memchr(b'\n', self.rest) {
+            Some(i) => (&self.rest[..i], &self.rest[i + 1..]),
+            None => (self.rest, &self.rest[self.rest.len()..]),
+        };
+        self.rest = r;
+        self.line += 1;
+        Some(l)
+    }
+}
+
+/// Parses a chunk. `data` starts at a line start outside any event.
+pub(crate) fn parse_chunk(
+    data: &[u8],
+    file: &FileInfo,
+    place: &ChunkPlace,
+) -> Result<ParsedChunk, BodyFault> {
+    let mut out = ParsedChunk::default();
+    let mut lines = Lines {
+        rest: data,
+        line: place.first_line - 1,
+    };
+    let mut event_no = place.first_event;
+    let mut in_comment = false;
+    while let Some(raw) = lines.next_line() {
+        let line = trim(raw);
+        if line.is_empty() {
+            continue;
+        }
+        if in_comment {
+            if memchr::memmem::find(line, b"-->").is_some() {
+                in_comment = false;
+            }
+            continue;
+        }
+        if out.end_tag {
+            return Err(BodyFault {
+                event: None,
+                line: lines.line,
+                rule: format!("text after </LesHouchesEvents>: '{}'", show(line)),
+            });
+        }
+        if opens_tag(line, b"event") {
+            event_no += 1;
+            let ev = parse_event(&mut lines, file, event_no)?;
+            add_sums(&mut out.sums, &ev);
+            out.events.push(ev);
+        } else if line.starts_with(b"</LesHouchesEvents>") {
+            out.end_tag = true;
+        } else if line.starts_with(b"<!--") {
+            in_comment = memchr::memmem::find(line, b"-->").is_none();
+        } else {
+            return Err(BodyFault {
+                event: None,
+                line: lines.line,
+                rule: format!(
+                    "expected <event> or </LesHouchesEvents> after event {event_no}, got '{}'",
+                    show(line)
+                ),
+            });
+        }
+    }
+    out.n_lines = lines.line + 1 - place.first_line;
+    if place.last && !out.end_tag {
+        return Err(BodyFault {
+            event: None,
+            line: lines.line,
+            rule: format!(
+                "file is truncated: it ends after event {event_no} without </LesHouchesEvents>"
+            ),
+        });
+    }
+    Ok(out)
+}
+
+fn add_sums(sums: &mut Vec<ProcessSums>, ev: &Event) {
+    let i = match sums.iter().position(|s| s.process_id == ev.process_id) {
+        Some(i) => i,
+        None => {
+            sums.push(ProcessSums {
+                process_id: ev.process_id,
+                ..Default::default()
+            });
+            sums.len() - 1
+        }
+    };
+    let s = &mut sums[i];
+    s.n += 1;
+    s.sum_w += ev.weight;
+    s.sum_w2 += ev.weight * ev.weight;
+    s.n_negative += u64::from(ev.weight < 0.0);
+}
+
+static WGT_FINDER: std::sync::LazyLock<memchr::memmem::Finder<'static>> =
+    std::sync::LazyLock::new(|| memchr::memmem::Finder::new(b"<wgt"));
+
+const PARTICLE_COLUMNS: [&str; 13] = [
+    "IDUP",
+    "ISTUP",
+    "MOTHUP(1)",
+    "MOTHUP(2)",
+    "ICOLUP(1)",
+    "ICOLUP(2)",
+    "px",
+    "py",
+    "pz",
+    "E",
+    "m",
+    "VTIMUP",
+    "SPINUP",
+];
+const EVENT_COLUMNS: [&str; 6] = ["NUP", "IDPRUP", "XWGTUP", "SCALUP", "AQEDUP", "AQCDUP"];
+
+fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<Event, BodyFault> {
+    let err = |line: u64, rule: String| BodyFault {
+        event: Some(event_no),
+        line,
+        rule,
+    };
+    let truncated = |line: u64| {
+        err(
+            line,
+            "file is truncated in the middle of the event (no </event>)".to_string(),
+        )
+    };
+    // Event line.
+    let Some(raw) = lines.next_line() else {
+        return Err(truncated(lines.line));
+    };
+    let line_no = lines.line;
+    let mut cols = [&b""[..]; 6];
+    let n = split_into(raw, &mut cols);
+    if n != 6 {
+        return Err(err(
+            line_no,
+            format!(
+                "event line has {n} columns, expected 6 (NUP IDPRUP XWGTUP SCALUP AQEDUP AQCDUP)"
+            ),
+        ));
+    }
+    let nup = parse_i32(cols[0]).filter(|&v| v >= 0).ok_or_else(|| {
+        err(
+            line_no,
+            format!("NUP must be an integer ≥ 0, got '{}'", show(cols[0])),
+        )
+    })?;
+    let process_id = parse_i32(cols[1]).ok_or_else(|| {
+        err(
+            line_no,
+            format!("IDPRUP must be an integer, got '{}'", show(cols[1])),
+        )
+    })?;
+    if file.process(process_id).is_none() {
+        let ids: Vec<String> = file.processes.iter().map(|p| p.id.to_string()).collect();
+        return Err(err(
+            line_no,
+            format!(
+                "IDPRUP {process_id} is not among the LPRUP of <init> ({})",
+                ids.join(", ")
+            ),
+        ));
+    }
+    let mut reals = [0.0f64; 4];
+    for k in 0..4 {
+        reals[k] = real(cols[k + 2], EVENT_COLUMNS[k + 2], "").map_err(|r| err(line_no, r))?;
+    }
+    let mut ev = Event {
+        process_id,
+        weight: reals[0],
+        scale_gev: reals[1],
+        alpha_qed: reals[2],
+        alpha_qcd: reals[3],
+        particles: Vec::with_capacity(nup as usize),
+        weights: Vec::new(),
+    };
+
+    // Particle lines.
+    for i in 0..nup {
+        let Some(raw) = lines.next_line() else {
+            return Err(truncated(lines.line));
+        };
+        if let Some(p) = fast_particle(raw) {
+            ev.particles.push(p);
+            continue;
+        }
+        // Slow path: read field by field to name the problem exactly.
+        let line_no = lines.line;
+        let mut c = [&b""[..]; 13];
+        let n = split_into(raw, &mut c);
+        if n != 13 {
+            let t = trim(raw);
+            if t.starts_with(b"<") {
+                return Err(err(
+                    line_no,
+                    format!(
+                        "NUP = {nup} but the event has only {i} particle lines (found '{}')",
+                        show(t)
+                    ),
+                ));
+            }
+            return Err(err(
+                line_no,
+                format!("particle line {} has {n} columns, expected 13", i + 1),
+            ));
+        }
+        let int = |k: usize| -> Result<i32, BodyFault> {
+            parse_i32(c[k]).ok_or_else(|| {
+                err(
+                    line_no,
+                    format!(
+                        "particle {}: {} must be an integer, got '{}'",
+                        i + 1,
+                        PARTICLE_COLUMNS[k],
+                        show(c[k])
+                    ),
+                )
+            })
+        };
+        let mother = |k: usize| -> Result<u32, BodyFault> {
+            let v = int(k)?;
+            u32::try_from(v).map_err(|_| {
+                err(
+                    line_no,
+                    format!(
+                        "particle {}: {} must be ≥ 0, got {v}",
+                        i + 1,
+                        PARTICLE_COLUMNS[k]
+                    ),
+                )
+            })
+        };
+        let id = int(0)?;
+        let status = int(1)?;
+        let mothers = [mother(2)?, mother(3)?];
+        let colour = [int(4)?, int(5)?];
+        let mut r = [0.0f64; 7];
+        for k in 0..7 {
+            let unit = if k < 5 {
+                " GeV"
+            } else if k == 5 {
+                " mm"
+            } else {
+                ""
+            };
+            r[k] = real(c[k + 6], PARTICLE_COLUMNS[k + 6], unit)
+                .map_err(|rule| err(line_no, format!("particle {}: {rule}", i + 1)))?;
+        }
+        ev.particles.push(Particle {
+            id,
+            status,
+            mothers,
+            colour,
+            p4: P4::new(r[3], r[0], r[1], r[2]),
+            mass_gev: r[4],
+            lifetime_mm: r[5],
+            spin: r[6],
+        });
+    }
+
+    // Optional information up to </event>.
+    let n_names = file.weight_names.len();
+    let mut named: Vec<Option<f64>> = Vec::new();
+    let mut positional: Vec<f64> = Vec::new();
+    let mut in_weights = false;
+    let mut saw_weights = false;
+    let mut n_named = 0usize;
+    loop {
+        let Some(raw) = lines.next_line() else {
+            return Err(truncated(lines.line));
+        };
+        let line_no = lines.line;
+        let line = trim(raw);
+        if line.starts_with(b"</event>") {
+            break;
+        }
+        if opens_tag(line, b"event") || line.starts_with(b"</LesHouchesEvents") {
+            return Err(truncated(line_no));
+        }
+        if in_weights || opens_tag(line, b"weights") {
+            let body = if in_weights {
+                line
+            } else {
+                saw_weights = true;
+                // invariant: opens_tag found '<weights' so a '>' may follow
+                match memchr::memchr(b'>', line) {
+                    Some(p) => &line[p + 1..],
+                    None => &line[line.len()..],
+                }
+            };
+            let (body, closed) = match memchr::memmem::find(body, b"</weights>") {
+                Some(p) => (&body[..p], true),
+                None => (body, false),
+            };
+            for f in fields(body) {
+                positional.push(real(f, "<weights> entry", "").map_err(|r| err(line_no, r))?);
+            }
+            in_weights = !closed;
+            continue;
+        }
+        let wgt_pos = if line.starts_with(b"<wgt") {
+            Some(0)
+        } else if memchr::memchr(b'<', line).is_some() {
+            WGT_FINDER.find(line)
+        } else {
+            None
+        };
+        if let Some(pos) = wgt_pos {
+            saw_weights = true;
+            let tag = &line[pos..];
+            let Some(gt) = memchr::memchr(b'>', tag) else {
+                return Err(err(
+                    line_no,
+                    format!("unterminated <wgt> tag '{}'", show(line)),
+                ));
+            };
+            let Some(id) = attribute(&tag[..gt], b"id") else {
+                return Err(err(line_no, format!("<wgt> without id: '{}'", show(line))));
+            };
+            let id = trim(id);
+            let rest = &tag[gt + 1..];
+            let close = memchr::memrchr(b'<', rest).filter(|&p| rest[p..].starts_with(b"</wgt>"));
+            let val = match close {
+                Some(p) => trim(&rest[..p]),
+                None => {
+                    return Err(err(
+                        line_no,
+                        format!("<wgt> without </wgt> on its line: '{}'", show(line)),
+                    ));
+                }
+            };
+            let v = real(val, "<wgt> value", "").map_err(|r| err(line_no, r))?;
+            if n_names == 0 {
+                return Err(err(
+                    line_no,
+                    format!(
+                        "<wgt id='{}'> but the header declares no weight names (<initrwgt>)",
+                        show(id)
+                    ),
+                ));
+            }
+            if named.is_empty() {
+                named = vec![None; n_names];
+            }
+            let guess = n_named;
+            n_named += 1;
+            let k = if file.weight_names.get(guess).map(String::as_bytes) == Some(id) {
+                guess
+            } else {
+                match file.weight_names.iter().position(|n| n.as_bytes() == id) {
+                    Some(k) => k,
+                    None => {
+                        return Err(err(
+                            line_no,
+                            format!("<wgt id='{}'> is not declared in <initrwgt>", show(id)),
+                        ));
+                    }
+                }
+            };
+            if named[k].replace(v).is_some() {
+                return Err(err(
+                    line_no,
+                    format!("weight id '{}' appears twice", show(id)),
+                ));
+            }
+            continue;
+        }
+        if !line.starts_with(b"<") && !line.starts_with(b"#") && looks_like_particle(line) {
+            return Err(err(
+                line_no,
+                format!("NUP = {nup} but the event has more particle lines"),
+            ));
+        }
+    }
+    if in_weights {
+        return Err(err(
+            lines.line,
+            "<weights> block without </weights>".to_string(),
+        ));
+    }
+    if !named.is_empty() {
+        if !positional.is_empty() {
+            return Err(err(
+                lines.line,
+                "event has both <rwgt> and <weights>".to_string(),
+            ));
+        }
+        let mut w = Vec::with_capacity(n_names);
+        for (k, v) in named.into_iter().enumerate() {
+            match v {
+                Some(v) => w.push(v),
+                None => {
+                    return Err(err(
+                        lines.line,
+                        format!(
+                            "event lacks weight '{}' declared in <initrwgt>",
+                            file.weight_names[k]
+                        ),
+                    ));
+                }
+            }
+        }
+        ev.weights = w;
+    } else if saw_weights {
+        if n_names > 0 && positional.len() != n_names {
+            return Err(err(
+                lines.line,
+                format!(
+                    "<weights> has {} values, the header declares {n_names} weight names",
+                    positional.len()
+                ),
+            ));
+        }
+        ev.weights = positional;
+    } else if n_names > 0 {
+        return Err(err(
+            lines.line,
+            format!("event has no weights but the header declares {n_names} weight names"),
+        ));
+    }
+    Ok(ev)
+}
+
+/// Reads a particle line in one scan when every field is in the usual
+/// form and finite; `None` sends the line to the checking slow path.
+#[inline]
+fn fast_particle(raw: &[u8]) -> Option<Particle> {
+    let mut c = Cursor::new(raw);
+    let id = c.i32()?;
+    let status = c.i32()?;
+    let m1 = u32::try_from(c.i32()?).ok()?;
+    let m2 = u32::try_from(c.i32()?).ok()?;
+    let colour = [c.i32()?, c.i32()?];
+    let px = c.f64()?;
+    let py = c.f64()?;
+    let pz = c.f64()?;
+    let e = c.f64()?;
+    let mass_gev = c.f64()?;
+    let lifetime_mm = c.f64()?;
+    let spin = c.f64()?;
+    if !c.at_end() {
+        return None;
+    }
+    Some(Particle {
+        id,
+        status,
+        mothers: [m1, m2],
+        colour,
+        p4: P4::new(e, px, py, pz),
+        mass_gev,
+        lifetime_mm,
+        spin,
+    })
+}
+
+/// Splits `line` into at most `out.len()` fields; returns the number of
+/// fields found (which exceeds `out.len()` by one when there are more).
+#[inline]
+fn split_into<'a>(line: &'a [u8], out: &mut [&'a [u8]]) -> usize {
+    let mut n = 0;
+    for f in fields(line) {
+        if n == out.len() {
+            return n + 1;
+        }
+        out[n] = f;
+        n += 1;
+    }
+    n
+}
+
+#[inline]
+fn real(s: &[u8], what: &str, unit: &str) -> Result<f64, String> {
+    match parse_f64(s) {
+        Some(v) if v.is_finite() => Ok(v),
+        Some(v) => Err(format!("{what} must be finite, got {v}{unit}")),
+        None => Err(format!("{what} must be a number, got '{}'", show(s))),
+    }
+}
+
+fn looks_like_particle(line: &[u8]) -> bool {
+    let mut n = 0;
+    for f in fields(line) {
+        if parse_f64(f).is_none() {
+            return false;
+        }
+        n += 1;
+    }
+    n == 13
+}

@@ -1,0 +1,486 @@
+//! A sample of event files: opening and validating the headers, then one
+//! streaming pass over all events on all cores, in constant memory.
+//!
+//! Fed by file paths and [`super::ReadOptions`]; feeds the later stages
+//! through [`EventSource::for_each_chunk`].
+//!
+//! How the pass works: the calling thread reads each file (gzip files are
+//! decompressed on a thread of their own) in blocks of [`BLOCK_BYTES`],
+//! cuts each block just before the line of its last `<event>` tag (a
+//! position that depends only on the file content, never on the number of
+//! threads), counts the events and lines of the chunk, and hands the chunk
+//! to the rayon pool, where it is parsed and mapped. Results come back out
+//! of order and are consumed strictly in order; at most a fixed window of
+//! chunks is in flight, so memory does not grow with the file size.
+
+use super::error::EventError;
+use super::gzip::{Input, fill, fill_into, open_input};
+use super::init::{FileInfo, HeaderFault, find_init_end, parse_head};
+use super::parse::{BodyFault, ChunkPlace, ParsedChunk, ProcessSums, parse_chunk};
+use super::weights::{SampleSummary, summarize};
+use super::{ChunkContext, Event, FileCombination, ReadOptions};
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::mpsc;
+
+/// Target size of a chunk of event text [bytes]. Chunk boundaries depend
+/// on this constant and the file content only.
+pub const BLOCK_BYTES: usize = 4 << 20;
+
+/// Largest span of text without a new event the reader accepts [bytes].
+pub const MAX_EVENT_BYTES: usize = 256 << 20;
+
+/// Largest header (first line to `</init>`) the reader accepts [bytes].
+pub const MAX_HEADER_BYTES: usize = 64 << 20;
+
+/// What the headers and `<init>` blocks of a sample's files say.
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
+pub struct SampleInfo {
+    /// Names of the per-event weight variations, in the order of
+    /// [`Event::weights`]; empty when the sample has none.
+    pub weight_names: Vec<String>,
+    /// Per-file header information, in the order given to
+    /// [`EventSource::open`].
+    pub files: Vec<FileInfo>,
+    /// How the files are combined.
+    pub combination: FileCombination,
+    /// PDG ids treated as invisible (absolute values, sorted).
+    pub invisible_ids: Vec<i32>,
+}
+
+/// A sample of one or more event files, opened and validated up to the
+/// first event, ready to stream.
+#[derive(Debug)]
+pub struct EventSource {
+    info: SampleInfo,
+}
+
+fn io_err(path: &Path, input: Option<&Input>, offset: u64, e: std::io::Error) -> EventError {
+    if input.is_some_and(|i| i.gzip) {
+        EventError::Gzip {
+            path: path.to_path_buf(),
+            offset,
+            source: e,
+        }
+    } else {
+        EventError::Io {
+            path: path.to_path_buf(),
+            source: e,
+        }
+    }
+}
+
+fn header_err(path: &Path, f: HeaderFault) -> EventError {
+    EventError::Header {
+        path: path.to_path_buf(),
+        line: f.line,
+        rule: f.rule,
+    }
+}
+
+/// Reads and validates the header and `<init>` block of one file.
+pub fn read_file_info(path: &Path) -> Result<FileInfo, EventError> {
+    let mut input = open_input(path).map_err(|e| io_err(path, None, 0, e))?;
+    let mut head = Vec::new();
+    let mut want = 1 << 16;
+    loop {
+        let eof = fill(&mut input.reader, &mut head, want)
+            .map_err(|e| io_err(path, Some(&input), head.len() as u64, e))?;
+        if head.is_empty() {
+            return Err(header_err(
+                path,
+                HeaderFault {
+                    line: 1,
+                    rule: "empty file (0 bytes of text)".into(),
+                },
+            ));
+        }
+        if let Some(end) = find_init_end(&head, eof) {
+            return parse_head(path, input.gzip, &head[..end]).map_err(|f| header_err(path, f));
+        }
+        if eof || head.len() >= MAX_HEADER_BYTES {
+            // Let the header parser name what is missing.
+            let err = parse_head(path, input.gzip, &head)
+                .err()
+                .unwrap_or(HeaderFault {
+                    line: 1,
+                    rule: format!("no </init> within the first {} MiB", MAX_HEADER_BYTES >> 20),
+                });
+            return Err(header_err(path, err));
+        }
+        want *= 2;
+    }
+}
+
+impl EventSource {
+    /// Opens every file, reads and validates its header and `<init>` block.
+    pub fn open<P: AsRef<Path>>(paths: &[P], opts: ReadOptions) -> Result<Self, EventError> {
+        if paths.is_empty() {
+            return Err(EventError::Option("no event files given".into()));
+        }
+        let mut files = Vec::with_capacity(paths.len());
+        for p in paths {
+            files.push(read_file_info(p.as_ref())?);
+        }
+        let weight_names = files[0].weight_names.clone();
+        for f in &files[1..] {
+            if f.weight_names != weight_names {
+                return Err(EventError::Sample {
+                    path: f.path.clone(),
+                    rule: format!(
+                        "its {} weight names differ from the {} of {} (files of one sample must share them)",
+                        f.weight_names.len(),
+                        weight_names.len(),
+                        files[0].path.display()
+                    ),
+                });
+            }
+        }
+        Ok(Self {
+            info: SampleInfo {
+                weight_names,
+                files,
+                combination: opts.combination,
+                invisible_ids: opts.invisible.ids().to_vec(),
+            },
+        })
+    }
+
+    /// Header information of the sample.
+    pub fn info(&self) -> &SampleInfo {
+        &self.info
+    }
+
+    /// Streams every event once, in constant memory, on all cores.
+    ///
+    /// Files are cut into chunks at event boundaries that depend only on the
+    /// file content, never on the number of threads. `map` runs on worker
+    /// threads, one call per chunk; `consume` receives the results strictly
+    /// in file and chunk order. `progress` is called with the number of
+    /// bytes read so far (bytes on disk, so compressed bytes for gzip
+    /// files). The first error in file order stops the pass.
+    pub fn for_each_chunk<T, M, C>(
+        self,
+        map: M,
+        mut consume: C,
+        progress: Option<&(dyn Fn(u64) + Sync)>,
+    ) -> Result<SampleSummary, EventError>
+    where
+        T: Send,
+        M: Fn(&ChunkContext, &[Event]) -> T + Sync,
+        C: FnMut(T),
+    {
+        let info = &self.info;
+        let window = 2 * rayon::current_num_threads() + 2;
+        // Sequence number of the earliest failed chunk; later chunks are skipped.
+        let first_failure = AtomicUsize::new(usize::MAX);
+        let mut sums: Vec<Vec<ProcessSums>> = vec![Vec::new(); info.files.len()];
+        let mut done_bytes: u64 = 0;
+
+        // A failed chunk reports its file and the fault with a line number
+        // counted from the chunk's first line; the consumer, which knows
+        // the lines of all earlier chunks, makes it a file line number.
+        type Out<T> = Result<(T, ParsedChunkMeta), (usize, BodyFault)>;
+        let mut line_base: Vec<u64> = info.files.iter().map(|f| f.body_line).collect();
+        let result: Result<(), EventError> = rayon::in_place_scope(|scope| {
+            let (tx, rx) = mpsc::channel::<(usize, Out<T>)>();
+            let (recycled_tx, recycled_rx) = mpsc::channel::<Vec<u8>>();
+            let mut pending: BTreeMap<usize, Out<T>> = BTreeMap::new();
+            let mut issued = 0usize;
+            let mut consumed = 0usize;
+            // The file-order state of the consumer: did the previous chunk
+            // of this file end with </LesHouchesEvents>?
+            let mut after_end_tag: Option<(usize, PathBuf)> = None;
+
+            // Consumes every result that is next in order; stops at the first error.
+            let mut drain = |pending: &mut BTreeMap<usize, Out<T>>,
+                             consumed: &mut usize,
+                             sums: &mut Vec<Vec<ProcessSums>>|
+             -> Result<(), EventError> {
+                while let Some(out) = pending.remove(consumed) {
+                    *consumed += 1;
+                    let (value, meta) = match out {
+                        Ok(x) => x,
+                        Err((fi, f)) => {
+                            let path = info.files[fi].path.clone();
+                            let line = line_base[fi] + f.line - 1;
+                            return Err(match f.event {
+                                Some(event) => EventError::Event {
+                                    path,
+                                    event,
+                                    line,
+                                    rule: f.rule,
+                                },
+                                None => EventError::Body {
+                                    path,
+                                    line,
+                                    rule: f.rule,
+                                },
+                            });
+                        }
+                    };
+                    if let Some((fi, path)) = &after_end_tag
+                        && *fi == meta.file_index
+                        && meta.n_events > 0
+                    {
+                        return Err(EventError::Body {
+                            path: path.clone(),
+                            line: line_base[meta.file_index],
+                            rule: "events after </LesHouchesEvents>".into(),
+                        });
+                    }
+                    line_base[meta.file_index] += meta.n_lines;
+                    if meta.end_tag {
+                        after_end_tag =
+                            Some((meta.file_index, info.files[meta.file_index].path.clone()));
+                    }
+                    merge_sums(&mut sums[meta.file_index], &meta.sums);
+                    consume(value);
+                }
+                Ok(())
+            };
+
+            // Err(Ok(e)): reading failed (earlier chunks still count);
+            // Err(Err(e)): a chunk failed in order (nothing more is consumed).
+            let mut run = || -> Result<(), Result<EventError, EventError>> {
+                for (file_index, file) in info.files.iter().enumerate() {
+                    let path = &file.path;
+                    let mut input = open_input(path).map_err(|e| Ok(io_err(path, None, 0, e)))?;
+                    // Skip the header.
+                    let mut skip = Vec::new();
+                    let offset = usize::try_from(file.body_offset).unwrap_or(usize::MAX);
+                    fill(&mut input.reader, &mut skip, offset)
+                        .map_err(|e| Ok(io_err(path, Some(&input), 0, e)))?;
+                    if skip.len() != offset {
+                        return Err(Ok(EventError::Sample {
+                            path: path.clone(),
+                            rule: "the file changed since it was opened (header shorter)".into(),
+                        }));
+                    }
+                    drop(skip);
+                    let mut text_offset = file.body_offset;
+                    let mut first_event: u64 = 0;
+                    let mut carry: Vec<u8> = Vec::new();
+                    let mut eof = false;
+                    while !eof {
+                        // Reuse a buffer a worker has finished with: its
+                        // memory is already initialised, so reading into it
+                        // costs no clearing and no allocation.
+                        let mut buf = recycled_rx.try_recv().unwrap_or_default();
+                        if buf.len() < carry.len() {
+                            buf.resize(carry.len(), 0);
+                        }
+                        buf[..carry.len()].copy_from_slice(&carry);
+                        let mut filled = carry.len();
+                        let mut want = BLOCK_BYTES.max(filled + 1);
+                        let cut = loop {
+                            eof = fill_into(&mut input.reader, &mut buf, &mut filled, want)
+                                .map_err(|e| {
+                                    Ok(io_err(path, Some(&input), text_offset + filled as u64, e))
+                                })?;
+                            if eof {
+                                break filled;
+                            }
+                            match last_event_start(&buf[..filled]) {
+                                Some(c) if c > 0 => break c,
+                                _ if filled >= MAX_EVENT_BYTES => {
+                                    return Err(Ok(EventError::Sample {
+                                        path: path.clone(),
+                                        rule: format!(
+                                            "no <event> tag starts a line within {} MiB after byte {text_offset} of the text",
+                                            MAX_EVENT_BYTES >> 20
+                                        ),
+                                    }));
+                                }
+                                _ => want = filled * 2,
+                            }
+                        };
+                        carry.clear();
+                        carry.extend_from_slice(&buf[cut..filled]);
+                        let n_events = count_event_starts(&buf[..cut]);
+                        let place = ChunkPlace {
+                            first_line: 1,
+                            first_event,
+                            last: eof,
+                        };
+                        let ctx = ChunkContext {
+                            file_index,
+                            first_event_index: first_event,
+                        };
+                        text_offset += cut as u64;
+                        first_event += n_events;
+                        let seq = issued;
+                        issued += 1;
+                        let tx = tx.clone();
+                        let recycled_tx = recycled_tx.clone();
+                        let map = &map;
+                        let first_failure = &first_failure;
+                        scope.spawn(move |_| {
+                            if seq > first_failure.load(Ordering::Relaxed) {
+                                let skipped = BodyFault {
+                                    event: None,
+                                    line: 1,
+                                    rule: "skipped after an earlier error".into(),
+                                };
+                                let _ = tx.send((seq, Err((file_index, skipped))));
+                                return;
+                            }
+                            let out = parse_chunk(&buf[..cut], file, &place)
+                                .and_then(|parsed| check_count(parsed, n_events))
+                                .map(|parsed| {
+                                    let value = map(&ctx, &parsed.events);
+                                    let meta = ParsedChunkMeta {
+                                        file_index,
+                                        n_lines: parsed.n_lines,
+                                        n_events: parsed.events.len() as u64,
+                                        end_tag: parsed.end_tag,
+                                        sums: parsed.sums,
+                                    };
+                                    (value, meta)
+                                })
+                                .map_err(|f| (file_index, f));
+                            let _ = recycled_tx.send(buf);
+                            if out.is_err() {
+                                first_failure.fetch_min(seq, Ordering::Relaxed);
+                            }
+                            let _ = tx.send((seq, out));
+                        });
+                        while issued - consumed >= window {
+                            let (seq, out) = receive(&rx).ok_or_else(|| {
+                                Ok(EventError::Format("internal: worker channel closed".into()))
+                            })?;
+                            pending.insert(seq, out);
+                            drain(&mut pending, &mut consumed, &mut sums).map_err(Err)?;
+                        }
+                        if let Some(p) = progress {
+                            p(done_bytes + input.disk_bytes.load(Ordering::Relaxed));
+                        }
+                    }
+                    done_bytes += input.disk_bytes.load(Ordering::Relaxed);
+                }
+                Ok(())
+            };
+            let read_result = match run() {
+                Ok(()) => Ok(()),
+                Err(Err(chunk_error)) => return Err(chunk_error),
+                Err(Ok(read_error)) => Err(read_error),
+            };
+            // Wait for every issued chunk, consuming in order; the first
+            // error in file order wins over a later read error.
+            while consumed < issued {
+                match receive(&rx) {
+                    Some((seq, out)) => {
+                        pending.insert(seq, out);
+                        drain(&mut pending, &mut consumed, &mut sums)?;
+                    }
+                    None => break,
+                }
+            }
+            read_result
+        });
+        result?;
+        if let Some(p) = progress {
+            p(done_bytes);
+        }
+        summarize(&info.files, &sums, info.combination, &info.weight_names).map_err(|f| {
+            EventError::Sample {
+                path: info.files[f.file_index].path.clone(),
+                rule: f.rule,
+            }
+        })
+    }
+}
+
+/// Receives the next result. On a rayon worker thread (when the caller
+/// runs inside a pool) it runs queued pool tasks while waiting, so a pool
+/// of one thread cannot deadlock; elsewhere it blocks.
+fn receive<X>(rx: &mpsc::Receiver<X>) -> Option<X> {
+    loop {
+        match rayon::yield_now() {
+            None => return rx.recv().ok(),
+            Some(rayon::Yield::Executed) => match rx.try_recv() {
+                Ok(x) => return Some(x),
+                Err(mpsc::TryRecvError::Empty) => {}
+                Err(mpsc::TryRecvError::Disconnected) => return None,
+            },
+            Some(rayon::Yield::Idle) => {
+                match rx.recv_timeout(std::time::Duration::from_micros(200)) {
+                    Ok(x) => return Some(x),
+                    Err(mpsc::RecvTimeoutError::Timeout) => {}
+                    Err(mpsc::RecvTimeoutError::Disconnected) => return None,
+                }
+            }
+        }
+    }
+}
+
+/// What the consumer needs from a parsed chunk besides the mapped value.
+struct ParsedChunkMeta {
+    file_index: usize,
+    n_lines: u64,
+    n_events: u64,
+    end_tag: bool,
+    sums: Vec<ProcessSums>,
+}
+
+fn check_count(parsed: ParsedChunk, n_counted: u64) -> Result<ParsedChunk, BodyFault> {
+    if parsed.events.len() as u64 == n_counted {
+        Ok(parsed)
+    } else {
+        Err(BodyFault {
+            event: None,
+            line: 1,
+            rule: format!(
+                "an <event> tag sits inside another block (found {} event tags, parsed {} events)",
+                n_counted,
+                parsed.events.len()
+            ),
+        })
+    }
+}
+
+fn merge_sums(into: &mut Vec<ProcessSums>, from: &[ProcessSums]) {
+    for s in from {
+        match into.iter_mut().find(|t| t.process_id == s.process_id) {
+            Some(t) => {
+                t.n += s.n;
+                t.sum_w += s.sum_w;
+                t.sum_w2 += s.sum_w2;
+                t.n_negative += s.n_negative;
+            }
+            None => into.push(s.clone()),
+        }
+    }
+}
+
+/// True when the `<event` at `pos` opens an event tag at the start of a line
+/// (only blanks before it) and is followed by `>` or a blank.
+#[inline]
+fn is_event_start(buf: &[u8], pos: usize) -> Option<usize> {
+    let after = buf.get(pos + 6).copied();
+    if !matches!(after, Some(b'>' | b' ' | b'\t' | b'\r' | b'/')) {
+        return None;
+    }
+    let mut i = pos;
+    while i > 0 {
+        match buf[i - 1] {
+            b' ' | b'\t' => i -= 1,
+            b'\n' => return Some(i),
+            _ => return None,
+        }
+    }
+    Some(0)
+}
+
+/// Byte offset of the start of the line holding the last event tag.
+fn last_event_start(buf: &[u8]) -> Option<usize> {
+    memchr::memmem::rfind_iter(buf, b"<event").find_map(|pos| is_event_start(buf, pos))
+}
+
+/// Number of event tags at line starts in `buf`.
+fn count_event_starts(buf: &[u8]) -> u64 {
+    memchr::memmem::find_iter(buf, b"<event")
+        .filter(|&pos| is_event_start(buf, pos).is_some())
+        .count() as u64
+}

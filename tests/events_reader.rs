@@ -1,0 +1,814 @@
+//! Integration tests of the event reader: a differential test against the
+//! `lhef` crate, determinism on 1 and N threads, gzip input, the weight
+//! convention for every IDWTUP, and one test per strict error.
+
+mod events_support;
+
+use events_support::{Spec, gzip, lhef_string, write_lhef};
+use recoil::events::{
+    ChunkContext, Event, EventError, EventSource, FileCombination, ReadOptions, SampleSummary,
+};
+use std::path::{Path, PathBuf};
+
+fn write(dir: &Path, name: &str, bytes: &[u8]) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, bytes).expect("writing a test file");
+    p
+}
+
+/// Every chunk's context and events, in order.
+type Chunks = Vec<(ChunkContext, Vec<Event>)>;
+
+fn read_all(paths: &[PathBuf], opts: ReadOptions) -> Result<(Chunks, SampleSummary), EventError> {
+    let src = EventSource::open(paths, opts)?;
+    let mut chunks = Vec::new();
+    let summary = src.for_each_chunk(|ctx, evs| (*ctx, evs.to_vec()), |c| chunks.push(c), None)?;
+    Ok((chunks, summary))
+}
+
+fn events_of(paths: &[PathBuf]) -> Vec<Event> {
+    let (chunks, _) = read_all(paths, ReadOptions::default()).expect("valid sample");
+    chunks.into_iter().flat_map(|(_, e)| e).collect()
+}
+
+fn err_of(text: &[u8]) -> String {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = write(dir.path(), "bad.lhe", text);
+    match read_all(&[p], ReadOptions::default()) {
+        Ok(_) => panic!("expected an error"),
+        Err(e) => e.to_string(),
+    }
+}
+
+/// Events read by the `lhef` crate, converted to our type; `<wgt>` values
+/// read from the event's optional information with `str::parse` (the
+/// correctly rounded standard parser).
+fn lhef_reference(path: &Path) -> Vec<Event> {
+    let f = std::io::BufReader::new(std::fs::File::open(path).expect("open"));
+    let mut r = lhef::Reader::new(f).expect("lhef header");
+    let mut out = Vec::new();
+    while let Some(e) = r.hepeup().expect("lhef event") {
+        let particles = (0..e.NUP as usize)
+            .map(|i| recoil::events::Particle {
+                id: e.IDUP[i],
+                status: e.ISTUP[i],
+                mothers: [e.MOTHUP[i][0] as u32, e.MOTHUP[i][1] as u32],
+                colour: e.ICOLUP[i],
+                p4: recoil::kinematics::P4::new(e.PUP[i][3], e.PUP[i][0], e.PUP[i][1], e.PUP[i][2]),
+                mass_gev: e.PUP[i][4],
+                lifetime_mm: e.VTIMUP[i],
+                spin: e.SPINUP[i],
+            })
+            .collect();
+        let weights = e
+            .info
+            .lines()
+            .filter_map(|l| {
+                let l = l.trim();
+                let v = l.strip_prefix("<wgt")?.split_once('>')?.1;
+                Some(
+                    v.split_once("</wgt>")?
+                        .0
+                        .trim()
+                        .parse::<f64>()
+                        .expect("wgt"),
+                )
+            })
+            .collect();
+        out.push(Event {
+            process_id: e.IDRUP,
+            weight: e.XWGTUP,
+            scale_gev: e.SCALUP,
+            alpha_qed: e.AQEDUP,
+            alpha_qcd: e.AQCDUP,
+            particles,
+            weights,
+        });
+    }
+    out
+}
+
+fn bits(e: &Event) -> Vec<u64> {
+    let mut v = vec![
+        e.process_id as u64,
+        e.weight.to_bits(),
+        e.scale_gev.to_bits(),
+        e.alpha_qed.to_bits(),
+        e.alpha_qcd.to_bits(),
+    ];
+    for p in &e.particles {
+        v.extend([
+            p.id as u64,
+            p.status as u64,
+            p.mothers[0] as u64,
+            p.mothers[1] as u64,
+        ]);
+        v.extend([p.colour[0] as u64, p.colour[1] as u64]);
+        for x in [
+            p.p4.px,
+            p.p4.py,
+            p.p4.pz,
+            p.p4.e,
+            p.mass_gev,
+            p.lifetime_mm,
+            p.spin,
+        ] {
+            v.push(x.to_bits());
+        }
+    }
+    v.extend(e.weights.iter().map(|w| w.to_bits()));
+    v
+}
+
+fn names(n: usize) -> Vec<String> {
+    (0..n).map(|k| format!("{}", 1001 + k)).collect()
+}
+
+// Reference: the `lhef` crate 0.6.0 (an independent reader). Several
+// chunks (the file is larger than the 4 MiB block), two processes,
+// negative weights and nine named weights.
+#[test]
+fn differential_against_lhef_crate_fixed_notation() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let spec = Spec {
+        n_events: 12_000,
+        idwtup: -4,
+        processes: vec![(1, 2.0, 0.1), (7, 1.0, 0.05)],
+        negative_every: 7,
+        weight_names: names(9),
+        ..Default::default()
+    };
+    let text = lhef_string(&spec);
+    assert!(
+        text.len() > 2 * recoil::events::BLOCK_BYTES,
+        "needs several chunks"
+    );
+    let p = write(dir.path(), "ref.lhe", text.as_bytes());
+    let ours = events_of(std::slice::from_ref(&p));
+    let theirs = lhef_reference(&p);
+    assert_eq!(ours.len(), 12_000);
+    assert_eq!(ours.len(), theirs.len());
+    for (i, (a, b)) in ours.iter().zip(&theirs).enumerate() {
+        assert_eq!(bits(a), bits(b), "event {}", i + 1);
+    }
+}
+
+// Reference: the `lhef` crate's own writer (shortest round-trip notation,
+// e.g. `84515.12`, `1e-5`) read back by the `lhef` crate.
+#[test]
+fn differential_against_lhef_crate_writer_notation() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let src = write(
+        dir.path(),
+        "src.lhe",
+        lhef_string(&Spec {
+            n_events: 500,
+            ..Default::default()
+        })
+        .as_bytes(),
+    );
+    let mut reader = lhef::Reader::new(std::io::BufReader::new(
+        std::fs::File::open(&src).expect("open"),
+    ))
+    .expect("header");
+    let mut out = Vec::new();
+    {
+        let mut w = lhef::Writer::new(std::io::Cursor::new(&mut out), "1.0").expect("writer");
+        let mut heprup = reader.heprup().clone();
+        heprup.info.clear();
+        w.heprup(&heprup).expect("init");
+        let mut k = 0u32;
+        while let Some(mut e) = reader.hepeup().expect("event") {
+            k += 1;
+            // Vary magnitudes so that every notation branch is hit.
+            e.XWGTUP *= 1.0e-7 * f64::from(k);
+            for p in &mut e.PUP {
+                p[0] *= 1.0e-3 * f64::from(k % 17);
+                p[2] *= 1.0e9;
+            }
+            e.info.clear();
+            w.hepeup(&e).expect("write");
+        }
+        w.finish().expect("finish");
+    }
+    let p = write(dir.path(), "written.lhe", &out);
+    let ours = events_of(std::slice::from_ref(&p));
+    let theirs = lhef_reference(&p);
+    assert_eq!(ours.len(), 500);
+    for (i, (a, b)) in ours.iter().zip(&theirs).enumerate() {
+        assert_eq!(bits(a), bits(b), "event {}", i + 1);
+    }
+}
+
+// Determinism (CONVENTIONS.md): the same summary and chunking on 1 and 2
+// threads, bit for bit.
+#[test]
+fn identical_on_one_and_many_threads() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let spec = Spec {
+        n_events: 9_000,
+        idwtup: -1,
+        weight: 0.123_456_789,
+        negative_every: 3,
+        ..Default::default()
+    };
+    let p = write(dir.path(), "a.lhe", lhef_string(&spec).as_bytes());
+    let run = |threads: usize| {
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .expect("pool");
+        pool.install(|| {
+            let src =
+                EventSource::open(std::slice::from_ref(&p), ReadOptions::default()).expect("open");
+            let mut partial = Vec::new();
+            let s = src
+                .for_each_chunk(
+                    |ctx, evs| {
+                        let sum: f64 = evs.iter().map(|e| e.weight * e.particles[2].p4.pt()).sum();
+                        (ctx.first_event_index, evs.len(), sum.to_bits())
+                    },
+                    |x| partial.push(x),
+                    None,
+                )
+                .expect("read");
+            (s, partial)
+        })
+    };
+    let (s1, p1) = run(1);
+    let (s2, p2) = run(2);
+    assert!(p1.len() > 1);
+    assert_eq!(p1, p2);
+    assert_eq!(s1, s2);
+    assert_eq!(s1.sum_w.to_bits(), s2.sum_w.to_bits());
+    // Chunks are contiguous and cover every event once.
+    let mut next = 0u64;
+    for (first, n, _) in &p1 {
+        assert_eq!(*first, next);
+        next += *n as u64;
+    }
+    assert_eq!(next, 9_000);
+}
+
+// gzip detected by magic bytes (RFC 1952), whatever the name, including a
+// multi-member file made of two gzip streams one after the other.
+#[test]
+fn gzip_and_multi_member_gzip_read_like_plain() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let text = lhef_string(&Spec {
+        n_events: 3_000,
+        weight_names: names(3),
+        ..Default::default()
+    });
+    let plain = write(dir.path(), "p.lhe", text.as_bytes());
+    let gz = write(dir.path(), "no-suffix.lhe", &gzip(text.as_bytes()));
+    let (a, b) = text.as_bytes().split_at(text.len() / 3);
+    let mut multi = gzip(a);
+    multi.extend(gzip(b));
+    let mm = write(dir.path(), "multi.lhe.gz", &multi);
+    let want: Vec<Vec<u64>> = events_of(&[plain]).iter().map(bits).collect();
+    for p in [gz, mm] {
+        let got: Vec<Vec<u64>> = events_of(&[p]).iter().map(bits).collect();
+        assert_eq!(got, want);
+    }
+    let src = EventSource::open(&[dir.path().join("no-suffix.lhe")], ReadOptions::default())
+        .expect("open");
+    assert!(src.info().files[0].gzip);
+    assert_eq!(src.info().weight_names, names(3));
+}
+
+// Header information: beams, √s = 2√(E₁E₂) = 13600 GeV for 6800 GeV beams
+// (LHC Run 3, common practice), PDF ids, IDWTUP, processes.
+#[test]
+fn header_information() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = write(
+        dir.path(),
+        "h.lhe",
+        lhef_string(&Spec {
+            idwtup: 2,
+            processes: vec![(3, 4.5, 0.25), (9, 0.5, 0.125)],
+            ..Default::default()
+        })
+        .as_bytes(),
+    );
+    let src = EventSource::open(&[p], ReadOptions::default()).expect("open");
+    let f = &src.info().files[0];
+    assert_eq!(f.version, "3.0");
+    assert_eq!(f.beam_ids, [2212, 2212]);
+    assert_eq!(f.beam_energies_gev, [6800.0, 6800.0]);
+    assert_eq!(f.sqrt_s_gev, 13600.0);
+    assert_eq!(f.pdf_sets, [303600, 303600]);
+    assert_eq!(f.idwtup, 2);
+    assert_eq!(f.processes.len(), 2);
+    assert_eq!(
+        (
+            f.processes[1].id,
+            f.processes[1].xsec_pb,
+            f.processes[1].xsec_err_pb
+        ),
+        (9, 0.5, 0.125)
+    );
+}
+
+fn summary_of(specs: &[Spec], comb: FileCombination) -> SampleSummary {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let paths: Vec<PathBuf> = specs
+        .iter()
+        .enumerate()
+        .map(|(i, s)| write(dir.path(), &format!("f{i}.lhe"), lhef_string(s).as_bytes()))
+        .collect();
+    read_all(
+        &paths,
+        ReadOptions {
+            combination: comb,
+            ..Default::default()
+        },
+    )
+    .expect("valid sample")
+    .1
+}
+
+fn close(a: f64, b: f64) -> bool {
+    (a - b).abs() <= 1e-12 * b.abs().max(1.0)
+}
+
+/// (IDWTUP, processes, weight, events, negative_every, factors, σ [pb]).
+type Case = (i32, Vec<(i32, f64, f64)>, f64, usize, usize, Vec<f64>, f64);
+
+// weight_to_pb for every IDWTUP, against values worked out by hand from the
+// convention documented in README (Les Houches accord, hep-ph/0109068).
+#[test]
+fn weight_to_pb_every_idwtup_hand_computed() {
+    let one = FileCombination::IndependentRuns;
+    // (idwtup, processes, weight, n_events, negative_every,
+    //  expected factors per process, expected σ [pb]) — by hand:
+    let cases: Vec<Case> = vec![
+        // ±1, ±4: f = 1/N; σ = Σw/N.
+        (1, vec![(1, 9.9, 0.1)], 0.5, 4, 0, vec![0.25], 0.5),
+        // 4 events ±2, event 0 negative: Σw = 4, σ = 1.
+        (-1, vec![(1, 9.9, 0.1)], 2.0, 4, 4, vec![0.25], 1.0),
+        (4, vec![(1, 9.9, 0.1)], 0.5, 4, 0, vec![0.25], 0.5),
+        (-4, vec![(1, 9.9, 0.1)], 2.0, 4, 4, vec![0.25], 1.0),
+        // ±2: f_p = XSECUP_p / Σ_p w. Processes alternate; 2 events each of
+        // weight 0.5: f_1 = 3/1, f_2 = 1/1; σ = 4.
+        (
+            2,
+            vec![(1, 3.0, 0.3), (2, 1.0, 0.4)],
+            0.5,
+            4,
+            0,
+            vec![3.0, 1.0],
+            4.0,
+        ),
+        // 6 events, 0 and 5 negative: Σ_1 = 0.5(−1+1+1) = 0.5 → f_1 = 6;
+        // Σ_2 = 0.5(1+1−1) = 0.5 → f_2 = 2.
+        (
+            -2,
+            vec![(1, 3.0, 0.3), (2, 1.0, 0.4)],
+            0.5,
+            6,
+            5,
+            vec![6.0, 2.0],
+            4.0,
+        ),
+        // ±3: f = Σ XSECUP / Σw = 3/(4·0.5) = 1.5; σ = 3.
+        (3, vec![(1, 3.0, 0.3)], 0.5, 4, 0, vec![1.5], 3.0),
+        // 3 events, event 0 negative: Σw = 0.5 → f = 6.
+        (-3, vec![(1, 3.0, 0.3)], 0.5, 3, 3, vec![6.0], 3.0),
+        // Two processes under +3 share one factor: Σ XSECUP = 4, Σw = 2.
+        (
+            3,
+            vec![(1, 3.0, 0.3), (2, 1.0, 0.4)],
+            0.5,
+            4,
+            0,
+            vec![2.0, 2.0],
+            4.0,
+        ),
+    ];
+    for (idwtup, procs, weight, n, neg, factors, xsec) in cases {
+        let spec = Spec {
+            idwtup,
+            processes: procs.clone(),
+            weight,
+            n_events: n,
+            negative_every: neg,
+            ..Default::default()
+        };
+        let s = summary_of(&[spec], one);
+        for ((pid, _, _), f) in procs.iter().zip(&factors) {
+            assert!(
+                close(s.weight_to_pb(0, *pid), *f),
+                "IDWTUP {idwtup} process {pid}: {} vs {f}",
+                s.weight_to_pb(0, *pid)
+            );
+        }
+        assert!(
+            close(s.cross_section_pb().0, xsec),
+            "IDWTUP {idwtup}: σ {:?}",
+            s.cross_section_pb()
+        );
+        assert_eq!(s.weight_to_pb(0, 12345), 0.0);
+        assert_eq!(s.weight_to_pb(1, procs[0].0), 0.0);
+    }
+}
+
+// Several files. A: 4 events, w = 0.5, XSECUP = 3 → f_A = 1.5, σ_A = 3;
+// B: 2 events, w = 1, XSECUP = 6 → f_B = 3, σ_B = 6 (IDWTUP 3, by hand).
+// Independent runs: c = N_k/N → f' = 1.0 and 1.0, σ = (4·3 + 2·6)/6 = 4.
+// Separate processes: f' = 1.5 and 3, σ = 9.
+#[test]
+fn file_combinations_hand_computed() {
+    let a = Spec {
+        idwtup: 3,
+        processes: vec![(1, 3.0, 0.3)],
+        weight: 0.5,
+        n_events: 4,
+        ..Default::default()
+    };
+    let b = Spec {
+        idwtup: 3,
+        processes: vec![(1, 6.0, 0.4)],
+        weight: 1.0,
+        n_events: 2,
+        ..Default::default()
+    };
+    let s = summary_of(&[a.clone(), b.clone()], FileCombination::IndependentRuns);
+    assert!(close(s.weight_to_pb(0, 1), 1.0));
+    assert!(close(s.weight_to_pb(1, 1), 1.0));
+    assert!(close(s.xsec_pb, 4.0));
+    // δσ = √((4/6·0.3)² + (2/6·0.4)²) = 0.23333 (by hand).
+    assert!((s.xsec_err_pb - ((0.2f64).powi(2) + (0.4f64 / 3.0).powi(2)).sqrt()).abs() < 1e-12);
+    assert!(s.weight_convention.contains("independent runs"));
+    let s = summary_of(&[a, b], FileCombination::SeparateProcesses);
+    assert!(close(s.weight_to_pb(0, 1), 1.5));
+    assert!(close(s.weight_to_pb(1, 1), 3.0));
+    assert!(close(s.xsec_pb, 9.0));
+    assert!(s.weight_convention.contains("separate processes"));
+}
+
+// Σ f·w over the sample equals the cross-section (the defining property of
+// the factor), and the negative-weight fraction counts: 1 in 4 (by hand).
+#[test]
+fn weights_sum_to_cross_section() {
+    let spec = Spec {
+        idwtup: -3,
+        processes: vec![(1, 2.5, 0.1), (2, 1.5, 0.1)],
+        weight: 1.0,
+        n_events: 400,
+        negative_every: 4,
+        ..Default::default()
+    };
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = write(dir.path(), "w.lhe", lhef_string(&spec).as_bytes());
+    let (chunks, s) = read_all(&[p], ReadOptions::default()).expect("read");
+    let s = &s;
+    let total: f64 = chunks
+        .iter()
+        .flat_map(|(c, evs)| {
+            evs.iter()
+                .map(move |e| s.weight_to_pb(c.file_index, e.process_id) * e.weight)
+        })
+        .sum();
+    assert!(close(total, 4.0), "{total}");
+    assert!(close(s.negative_weight_fraction, 0.25));
+}
+
+// ---------------------------------------------------------------- errors
+
+fn base_text() -> String {
+    lhef_string(&Spec {
+        n_events: 5,
+        ..Default::default()
+    })
+}
+
+/// 1-based line number of the first line containing `needle` after line
+/// `after` (1-based).
+fn line_of(text: &str, after: usize, needle: &str) -> usize {
+    text.lines()
+        .enumerate()
+        .skip(after)
+        .find(|(_, l)| l.contains(needle))
+        .map(|(i, _)| i + 1)
+        .expect("needle present")
+}
+
+/// Replaces the 1-based line `n` by `f(line)`.
+fn edit_line(text: &str, n: usize, f: impl Fn(&str) -> String) -> String {
+    let mut out: Vec<String> = text.lines().map(str::to_string).collect();
+    out[n - 1] = f(&out[n - 1]);
+    out.join("\n") + "\n"
+}
+
+/// 1-based line of the k-th (1-based) particle line of event `ev`.
+fn particle_line(text: &str, ev: usize, k: usize) -> usize {
+    let start = text
+        .lines()
+        .enumerate()
+        .filter(|(_, l)| l.trim() == "<event>")
+        .nth(ev - 1)
+        .map(|(i, _)| i + 1)
+        .expect("event present");
+    start + 1 + k
+}
+
+#[test]
+fn error_wrong_first_line() {
+    let t = base_text().replacen("<LesHouchesEvents", "<LesHouches", 1);
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains("bad.lhe: line 1: first line must be <LesHouchesEvents"),
+        "{e}"
+    );
+}
+
+#[test]
+fn error_missing_first_line() {
+    let t: String = base_text()
+        .lines()
+        .skip(1)
+        .map(|l| format!("{l}\n"))
+        .collect();
+    let e = err_of(t.as_bytes());
+    assert!(e.contains("line 1: first line must be"), "{e}");
+}
+
+#[test]
+fn error_unsupported_version() {
+    let t = base_text().replacen("version=\"3.0\"", "version=\"4.0\"", 1);
+    let e = err_of(t.as_bytes());
+    assert!(e.contains("line 1: unsupported LHEF version '4.0'"), "{e}");
+}
+
+#[test]
+fn error_missing_init() {
+    let t = base_text();
+    let start = t.find("<init>").expect("init");
+    let end = t.find("</init>\n").expect("init end") + 8;
+    let t = format!("{}{}", &t[..start], &t[end..]);
+    let e = err_of(t.as_bytes());
+    assert!(e.contains("missing <init> block"), "{e}");
+    assert!(e.contains("line 5"), "{e}");
+}
+
+#[test]
+fn error_truncated_inside_event() {
+    let t = base_text();
+    let cut = particle_line(&t, 3, 4);
+    let t: String = t.lines().take(cut).map(|l| format!("{l}\n")).collect();
+    let e = err_of(t.as_bytes());
+    assert!(e.contains("event 3:"), "{e}");
+    assert!(e.contains("truncated in the middle of the event"), "{e}");
+}
+
+#[test]
+fn error_truncated_without_end_tag() {
+    let t = lhef_string(&Spec {
+        n_events: 5,
+        end_tag: false,
+        ..Default::default()
+    });
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains("ends after event 5 without </LesHouchesEvents>"),
+        "{e}"
+    );
+}
+
+#[test]
+fn error_wrong_number_of_columns() {
+    let t = base_text();
+    let n = particle_line(&t, 2, 3);
+    let t = edit_line(&t, n, |l| {
+        l.rsplit_once(' ').expect("columns").0.to_string()
+    });
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "event 2: line {n}: particle line 3 has 12 columns, expected 13"
+        )),
+        "{e}"
+    );
+}
+
+#[test]
+fn error_wrong_number_of_event_columns() {
+    let t = base_text();
+    let n = line_of(&t, 0, "<event>") + 1;
+    let t = edit_line(&t, n, |l| format!("{l} 1.0"));
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "event 1: line {n}: event line has 7 columns, expected 6"
+        )),
+        "{e}"
+    );
+}
+
+#[test]
+fn error_non_numeric_field() {
+    let t = base_text();
+    let n = particle_line(&t, 4, 2);
+    let t = edit_line(&t, n, |l| {
+        let mut f: Vec<&str> = l.split_whitespace().collect();
+        f[8] = "1.0x";
+        f.join(" ")
+    });
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "event 4: line {n}: particle 2: pz must be a number, got '1.0x'"
+        )),
+        "{e}"
+    );
+    let t = edit_line(&base_text(), n, |l| {
+        let mut f: Vec<&str> = l.split_whitespace().collect();
+        f[0] = "2x";
+        f.join(" ")
+    });
+    let e = err_of(t.as_bytes());
+    assert!(e.contains("IDUP must be an integer"), "{e}");
+}
+
+#[test]
+fn error_nan_or_infinite_momentum() {
+    for bad in ["nan", "NaN", "inf", "-infinity", "1e400"] {
+        let t = base_text();
+        let n = particle_line(&t, 1, 3);
+        let t = edit_line(&t, n, |l| {
+            let mut f: Vec<&str> = l.split_whitespace().collect();
+            f[6] = bad;
+            f.join(" ")
+        });
+        let e = err_of(t.as_bytes());
+        assert!(
+            e.contains(&format!("event 1: line {n}: particle 3: px must be finite")),
+            "{bad}: {e}"
+        );
+        assert!(e.contains("GeV"), "{e}");
+    }
+}
+
+#[test]
+fn error_nup_disagrees_with_particle_lines() {
+    let t = base_text();
+    let n = line_of(&t, 0, "<event>") + 1;
+    let more = edit_line(&t, n, |l| l.replacen(" 6 ", " 7 ", 1));
+    let e = err_of(more.as_bytes());
+    assert!(
+        e.contains("event 1:") && e.contains("NUP = 7 but the event has only 6 particle lines"),
+        "{e}"
+    );
+    let fewer = edit_line(&t, n, |l| l.replacen(" 6 ", " 5 ", 1));
+    let e = err_of(fewer.as_bytes());
+    assert!(
+        e.contains("event 1:") && e.contains("NUP = 5 but the event has more particle lines"),
+        "{e}"
+    );
+}
+
+#[test]
+fn error_empty_file() {
+    let e = err_of(b"");
+    assert!(e.contains("bad.lhe: line 1: empty file"), "{e}");
+}
+
+#[test]
+fn error_undeclared_process_id() {
+    let t = base_text();
+    let n = line_of(&t, 0, "<event>") + 1;
+    let t = edit_line(&t, n, |l| l.replacen(" 6 1 ", " 6 4 ", 1));
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains("IDPRUP 4 is not among the LPRUP of <init> (1)"),
+        "{e}"
+    );
+}
+
+#[test]
+fn error_corrupt_and_truncated_gzip() {
+    let text = lhef_string(&Spec {
+        n_events: 2_000,
+        ..Default::default()
+    });
+    let gz = gzip(text.as_bytes());
+    // Truncated stream.
+    let e = err_of(&gz[..gz.len() / 2]);
+    assert!(
+        e.contains("bad.lhe") && (e.contains("gzip") || e.contains("truncated")),
+        "{e}"
+    );
+    // Corrupted bytes in the middle of the deflate data.
+    let mut bad = gz.clone();
+    for b in &mut bad[gz.len() / 2..gz.len() / 2 + 64] {
+        *b ^= 0x5a;
+    }
+    let e = err_of(&bad);
+    assert!(e.contains("bad.lhe"), "{e}");
+    // Corrupted CRC trailer.
+    let mut bad = gz;
+    let k = bad.len() - 6;
+    bad[k] ^= 0xff;
+    let e = err_of(&bad);
+    assert!(e.contains("corrupt gzip stream"), "{e}");
+}
+
+#[test]
+fn error_weight_names_disagree() {
+    let t = lhef_string(&Spec {
+        n_events: 3,
+        weight_names: names(2),
+        ..Default::default()
+    });
+    let n = line_of(&t, 20, "<wgt id='1002'>");
+    let t2 = edit_line(&t, n, |l| l.replace("1002", "2002"));
+    let e = err_of(t2.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "line {n}: <wgt id='2002'> is not declared in <initrwgt>"
+        )),
+        "{e}"
+    );
+    let t3 = edit_line(&t, n, |_| String::new());
+    let e = err_of(t3.as_bytes());
+    assert!(e.contains("event lacks weight '1002'"), "{e}");
+}
+
+#[test]
+fn error_text_after_end_tag() {
+    let t = base_text() + "<event>\n";
+    let e = err_of(t.as_bytes());
+    assert!(e.contains("after </LesHouchesEvents>"), "{e}");
+}
+
+// Robustness: every truncation of a valid file is an error (except at the
+// very end), and corrupted bytes never make the reader panic.
+#[test]
+fn truncations_and_corruptions_never_panic() {
+    let t = lhef_string(&Spec {
+        n_events: 4,
+        weight_names: names(2),
+        ..Default::default()
+    });
+    let bytes = t.as_bytes();
+    let end = t.find("</LesHouchesEvents>").expect("end tag");
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path().join("cut.lhe");
+    for cut in (0..end).step_by(7) {
+        std::fs::write(&p, &bytes[..cut]).expect("write");
+        let r = read_all(std::slice::from_ref(&p), ReadOptions::default());
+        assert!(r.is_err(), "truncation at byte {cut} accepted");
+    }
+    let mut x: u64 = 99;
+    for _ in 0..400 {
+        // Knuth MMIX LCG (common practice) picks the byte and its value.
+        x = x
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        let mut b = bytes.to_vec();
+        let at = (x >> 33) as usize % b.len();
+        b[at] = (x >> 20) as u8;
+        std::fs::write(&p, &b).expect("write");
+        let _ = read_all(std::slice::from_ref(&p), ReadOptions::default());
+        let gz = gzip(&b);
+        let mut g = gz.clone();
+        let at = (x >> 40) as usize % g.len();
+        g[at] ^= 0x41;
+        std::fs::write(&p, &g).expect("write");
+        let _ = read_all(std::slice::from_ref(&p), ReadOptions::default());
+    }
+}
+
+// Writing with std::io to a file in pieces (used by the benchmarks) gives
+// the same text as writing to memory.
+#[test]
+fn generator_is_deterministic() {
+    let spec = Spec::default();
+    let mut v = Vec::new();
+    write_lhef(&spec, &mut v).expect("write");
+    assert_eq!(v, lhef_string(&spec).into_bytes());
+}
+
+// Event and line numbers stay right in a later chunk of a large file (the
+// line is found by searching the text, independently of the reader).
+#[test]
+fn error_numbers_in_a_later_chunk() {
+    let t = lhef_string(&Spec {
+        n_events: 9_000,
+        ..Default::default()
+    });
+    assert!(t.len() > 2 * recoil::events::BLOCK_BYTES);
+    // Event k starts on line 9 + 9(k−1) of this layout; find it by text.
+    let target = 8_765;
+    let n = particle_line(&t, target, 5);
+    let t = edit_line(&t, n, |l| l.replacen("52", "52 7", 1));
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "event {target}: line {n}: particle line 5 has 14 columns"
+        )),
+        "{e}"
+    );
+}
