@@ -8,6 +8,7 @@ mod inspect;
 mod limit;
 mod merge;
 mod plot;
+mod recast;
 mod scan;
 mod translate;
 
@@ -25,6 +26,8 @@ pub struct Cli {
 enum Command {
     /// What is in event files: count, cross-section, weights, particles, missing momentum.
     Inspect(inspect::InspectArgs),
+    /// Yields, cut-flows, CLs and limits of one search for one event sample.
+    Recast(Box<recast::RecastArgs>),
     /// Model point or collider boundary → widths, Γ/M, BR, σ_SI / σ_SD.
     Translate(translate::TranslateArgs),
     /// Figures (SVG, with their data as CSV) from the files other commands write.
@@ -43,6 +46,7 @@ enum Command {
 pub fn run(cli: Cli) -> anyhow::Result<()> {
     match cli.command {
         Command::Inspect(args) => inspect::run(args),
+        Command::Recast(args) => recast::run(*args),
         Command::Translate(args) => translate::run(args),
         Command::Plot(args) => plot::run(args),
         Command::Direct(args) => direct::run(args),
