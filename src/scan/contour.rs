@@ -206,7 +206,8 @@ impl ContourLevel {
         }
     }
 
-    fn mu(self, r: &PointResult) -> f64 {
+    /// The point's upper limit on μ for this level.
+    pub fn mu(self, r: &PointResult) -> f64 {
         match self {
             Self::Observed => r.mu_up_obs,
             Self::Expected => r.mu_up_exp[2],

@@ -19,32 +19,7 @@ use super::cache::CacheKeyBuilder;
 use crate::detector::Variation;
 use crate::stats::{BackgroundConstraint, LimitOptions, Method};
 
-/// Type of the s-channel mediator of the simplified model.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum MediatorKind {
-    /// Spin-1 vector mediator (vector couplings to quarks and DM).
-    Vector,
-    /// Spin-1 axial-vector mediator.
-    #[serde(alias = "axial-vector")]
-    Axial,
-    /// Spin-0 scalar mediator with Yukawa-like quark couplings.
-    Scalar,
-    /// Spin-0 pseudoscalar mediator with Yukawa-like quark couplings.
-    Pseudoscalar,
-}
-
-impl MediatorKind {
-    /// The name used in plans and outputs.
-    pub fn name(self) -> &'static str {
-        match self {
-            Self::Vector => "vector",
-            Self::Axial => "axial",
-            Self::Scalar => "scalar",
-            Self::Pseudoscalar => "pseudoscalar",
-        }
-    }
-}
+pub use crate::model::MediatorKind;
 
 /// How the limit of one point is obtained from the search's regions.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize, Deserialize)]

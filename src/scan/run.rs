@@ -361,6 +361,14 @@ pub(crate) fn write_outputs(
             Ok(c) => contours = c,
             Err(e) => manifest.warnings.push(format!("no contours: {e}")),
         }
+        for c in contours.iter().filter(|c| c.segments.is_empty()) {
+            let n = rows.iter().filter(|r| c.level.mu(r) < 1.0).count();
+            manifest.warnings.push(format!(
+                "no {} contour: μ_up does not cross 1 on the grid (below 1 at {n} of {} points)",
+                c.level.name(),
+                rows.len()
+            ));
+        }
         let path = out.join("contours.csv");
         let bytes = contours_csv(&contours).map_err(|e| ScanError::Output {
             path: path.clone(),
