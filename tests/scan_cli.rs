@@ -253,3 +253,31 @@ fn a_killed_scan_resumes_to_the_uninterrupted_result() {
         "resumed vs uninterrupted",
     );
 }
+
+#[test]
+fn couplings_away_from_the_reference_rescale_the_signal() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let plan = subset_plan(d, "[stats]\nregions = \"combined\"");
+    // One off-shell demo file (M = 500 GeV < 2 m_χ = 800 GeV) at the
+    // reference couplings and at twice g_q.
+    let f = repo("demo-events/tenebris_mmed500_mdm400.lhe.gz");
+    std::fs::write(
+        d.join("points.csv"),
+        format!(
+            "files,m_med_gev,m_dm_gev,g_q,g_dm\n{f},500,400,0.25,1\n{f},500,400,0.5,1\n",
+            f = f.display()
+        ),
+    )
+    .unwrap();
+    ok(&["scan", plan.to_str().unwrap(), "--out", "o"], d);
+    let text = String::from_utf8(read(&d.join("o/results.csv"))).unwrap();
+    let s: Vec<f64> = text
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').nth(7).unwrap().parse().unwrap())
+        .collect();
+    // Off shell the rate scales as (g_q g_DM)² (the propagator is far from
+    // its pole; Abercrombie et al., arXiv:1507.00966): doubling g_q gives 4.
+    assert!((s[1] / s[0] - 4.0).abs() < 1e-9, "{s:?}");
+}

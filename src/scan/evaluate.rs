@@ -116,17 +116,27 @@ impl PointEvaluator for PlanEvaluator {
         let mediator = Mediator::new(self.mediator, point.m_med_gev, point.m_dm_gev, couplings)
             .map_err(|e| e.to_string())?;
         let width_over_mass = mediator.width_over_mass();
+        if couplings != self.reference {
+            // The events were generated at the reference couplings: rescale
+            // the rate (kinematics assumed unchanged; model stage).
+            let reference = mediator.with_couplings(self.reference);
+            let scale = reference
+                .signal_scale(&couplings)
+                .map_err(|e| e.to_string())?;
+            let xsec = yields.cross_section_pb * scale.factor;
+            yields = yields
+                .with_cross_section_pb(xsec)
+                .map_err(|e| e.to_string())?;
+            warnings.push(format!(
+                "signal rescaled from the reference couplings by {}: {}",
+                scale.factor,
+                scale.regime.approximation()
+            ));
+        }
         if mediator.is_wide() {
             warnings.push(format!(
                 "Γ/M = {width_over_mass:.3} exceeds {}: the narrow-width rescaling is unreliable",
                 model::WIDE_WIDTH_OVER_MASS
-            ));
-        }
-        if couplings != self.reference {
-            return Err(format!(
-                "couplings (g_q = {}, g_dm = {}, g_l = {}) differ from the plan's reference; \
-                 rescaling needs the model stage's σ×BR rescaling, not yet in this build",
-                point.couplings.g_q, point.couplings.g_dm, point.couplings.g_l
             ));
         }
         let limits =
