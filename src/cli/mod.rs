@@ -6,8 +6,10 @@ use clap::{Parser, Subcommand};
 mod direct;
 mod inspect;
 mod limit;
+mod merge;
 mod plot;
 mod recast;
+mod scan;
 mod translate;
 
 /// Recast LHC jet + missing-momentum searches for dark-matter models and
@@ -34,6 +36,10 @@ enum Command {
     Direct(direct::DirectArgs),
     /// CLs upper limits for counting experiments (exact, asymptotic, pseudo-experiments).
     Limit(limit::LimitArgs),
+    /// A grid of model points in parallel: results table, contours, DM–nucleon curves.
+    Scan(scan::ScanArgs),
+    /// Combine the output folders of the shards of one scan.
+    Merge(merge::MergeArgs),
 }
 
 /// Runs the parsed command.
@@ -45,5 +51,7 @@ pub fn run(cli: Cli) -> anyhow::Result<()> {
         Command::Plot(args) => plot::run(args),
         Command::Direct(args) => direct::run(args),
         Command::Limit(args) => limit::run(args),
+        Command::Scan(args) => scan::run(args),
+        Command::Merge(args) => merge::run(args),
     }
 }
