@@ -1,14 +1,17 @@
 //! Reader throughput on a generated LHEF 3.0 file of 200 000 events with
 //! nine named weights (written at benchmark time into a temporary folder):
 //! full parse on one thread, on all threads, gzip input, and gzip
-//! decompression alone with the same backend.
+//! decompression alone with the same backend; then the same pass with
+//! every event reconstructed by the generic 13 TeV detector profile
+//! (`recasts/detectors/generic-13tev.toml`) against the read-only pass.
 //!
-//! `cargo bench --bench events`
+//! `cargo bench --bench events` (or `-- pipeline` for the second group)
 
 #[path = "../tests/events_support/mod.rs"]
 mod events_support;
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use recoil::detector::{Detector, DetectorProfile, Reco};
 use recoil::events::{EventSource, ReadOptions};
 use std::io::Read;
 use std::path::{Path, PathBuf};
@@ -76,6 +79,45 @@ fn bench(c: &mut Criterion) {
                 n += k as u64;
             }
             assert_eq!(n, text_bytes);
+        })
+    });
+    g.finish();
+
+    let profile = DetectorProfile::from_toml_file(
+        &Path::new(env!("CARGO_MANIFEST_DIR")).join("recasts/detectors/generic-13tev.toml"),
+    )
+    .expect("detector profile");
+    let det = Detector::new(profile, ReadOptions::default().invisible, 7);
+    let mut g = c.benchmark_group("pipeline");
+    g.sample_size(10)
+        .measurement_time(Duration::from_secs(4))
+        .warm_up_time(Duration::from_secs(1))
+        .throughput(Throughput::Bytes(text_bytes));
+    g.bench_function("read_only", |b| b.iter(|| pass(&plain)));
+    g.bench_function("read_reconstruct", |b| {
+        b.iter(|| {
+            let src = EventSource::open(&[&plain], ReadOptions::default()).expect("open");
+            let mut n_jets = 0usize;
+            src.for_each_chunk(
+                |ctx, evs| {
+                    let mut reco = Reco::default();
+                    let mut jets = 0usize;
+                    for (k, ev) in evs.iter().enumerate() {
+                        det.reconstruct(
+                            ev,
+                            ctx.file_index,
+                            ctx.first_event_index + k as u64,
+                            &mut reco,
+                        );
+                        jets += reco.jets.len();
+                    }
+                    jets
+                },
+                |j| n_jets += j,
+                None,
+            )
+            .expect("read");
+            n_jets
         })
     });
     g.finish();

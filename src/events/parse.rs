@@ -75,12 +75,22 @@ impl<'a> Lines<'a> {
 }
 
 /// Parses a chunk. `data` starts at a line start outside any event.
+///
+/// `spare` holds events of an earlier chunk whose particle and weight
+/// vectors are refilled in place, so a pass over a file allocates only
+/// while the first chunks are parsed; pass an empty vector when there is
+/// none.
 pub(crate) fn parse_chunk(
     data: &[u8],
     file: &FileInfo,
     place: &ChunkPlace,
+    spare: Vec<Event>,
 ) -> Result<ParsedChunk, BodyFault> {
-    let mut out = ParsedChunk::default();
+    let mut out = ParsedChunk {
+        events: spare,
+        ..Default::default()
+    };
+    let mut n_events = 0usize;
     let mut lines = Lines {
         rest: data,
         line: place.first_line - 1,
@@ -107,9 +117,13 @@ pub(crate) fn parse_chunk(
         }
         if opens_tag(line, b"event") {
             event_no += 1;
-            let ev = parse_event(&mut lines, file, event_no)?;
-            add_sums(&mut out.sums, &ev);
-            out.events.push(ev);
+            if n_events == out.events.len() {
+                out.events.push(Event::default());
+            }
+            let ev = &mut out.events[n_events];
+            parse_event(&mut lines, file, event_no, ev)?;
+            add_sums(&mut out.sums, ev);
+            n_events += 1;
         } else if line.starts_with(b"</LesHouchesEvents>") {
             out.end_tag = true;
         } else if line.starts_with(b"<!--") {
@@ -125,6 +139,7 @@ pub(crate) fn parse_chunk(
             });
         }
     }
+    out.events.truncate(n_events);
     out.n_lines = lines.line + 1 - place.first_line;
     if place.last && !out.end_tag {
         return Err(BodyFault {
@@ -176,7 +191,13 @@ const PARTICLE_COLUMNS: [&str; 13] = [
 ];
 const EVENT_COLUMNS: [&str; 6] = ["NUP", "IDPRUP", "XWGTUP", "SCALUP", "AQEDUP", "AQCDUP"];
 
-fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<Event, BodyFault> {
+/// Parses one event into `ev`, reusing the capacity of its vectors.
+fn parse_event(
+    lines: &mut Lines<'_>,
+    file: &FileInfo,
+    event_no: u64,
+    ev: &mut Event,
+) -> Result<(), BodyFault> {
     let err = |line: u64, rule: String| BodyFault {
         event: Some(event_no),
         line,
@@ -229,15 +250,14 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
     for k in 0..4 {
         reals[k] = real(cols[k + 2], EVENT_COLUMNS[k + 2], "").map_err(|r| err(line_no, r))?;
     }
-    let mut ev = Event {
-        process_id,
-        weight: reals[0],
-        scale_gev: reals[1],
-        alpha_qed: reals[2],
-        alpha_qcd: reals[3],
-        particles: Vec::with_capacity(nup as usize),
-        weights: Vec::new(),
-    };
+    ev.process_id = process_id;
+    ev.weight = reals[0];
+    ev.scale_gev = reals[1];
+    ev.alpha_qed = reals[2];
+    ev.alpha_qcd = reals[3];
+    ev.particles.clear();
+    ev.particles.reserve(nup as usize);
+    ev.weights.clear();
 
     // Particle lines.
     for i in 0..nup {
@@ -324,7 +344,9 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
 
     // Optional information up to </event>.
     let n_names = file.weight_names.len();
-    let mut named: Vec<Option<f64>> = Vec::new();
+    // Named `<wgt>` values go straight into `ev.weights` (NaN marks a
+    // weight not yet seen: `real` accepts finite values only).
+    let mut named = false;
     let mut positional: Vec<f64> = Vec::new();
     let mut in_weights = false;
     let mut saw_weights = false;
@@ -403,8 +425,9 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
                     ),
                 ));
             }
-            if named.is_empty() {
-                named = vec![None; n_names];
+            if !named {
+                named = true;
+                ev.weights.resize(n_names, f64::NAN);
             }
             let guess = n_named;
             n_named += 1;
@@ -421,7 +444,8 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
                     }
                 }
             };
-            if named[k].replace(v).is_some() {
+            // invariant: k < n_names == ev.weights.len()
+            if !std::mem::replace(&mut ev.weights[k], v).is_nan() {
                 return Err(err(
                     line_no,
                     format!("weight id '{}' appears twice", show(id)),
@@ -442,29 +466,22 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
             "<weights> block without </weights>".to_string(),
         ));
     }
-    if !named.is_empty() {
+    if named {
         if !positional.is_empty() {
             return Err(err(
                 lines.line,
                 "event has both <rwgt> and <weights>".to_string(),
             ));
         }
-        let mut w = Vec::with_capacity(n_names);
-        for (k, v) in named.into_iter().enumerate() {
-            match v {
-                Some(v) => w.push(v),
-                None => {
-                    return Err(err(
-                        lines.line,
-                        format!(
-                            "event lacks weight '{}' declared in <initrwgt>",
-                            file.weight_names[k]
-                        ),
-                    ));
-                }
-            }
+        if let Some(k) = ev.weights.iter().position(|w| w.is_nan()) {
+            return Err(err(
+                lines.line,
+                format!(
+                    "event lacks weight '{}' declared in <initrwgt>",
+                    file.weight_names[k]
+                ),
+            ));
         }
-        ev.weights = w;
     } else if saw_weights {
         if n_names > 0 && positional.len() != n_names {
             return Err(err(
@@ -482,7 +499,7 @@ fn parse_event(lines: &mut Lines<'_>, file: &FileInfo, event_no: u64) -> Result<
             format!("event has no weights but the header declares {n_names} weight names"),
         ));
     }
-    Ok(ev)
+    Ok(())
 }
 
 /// Reads a particle line in one scan when every field is in the usual
