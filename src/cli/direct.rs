@@ -1,7 +1,6 @@
 //! `recoil direct spectrum|counts|curve`: direct-detection recoil spectra,
 //! expected signal counts and limit curves σ_lim(m_χ) for an experiment.
 
-use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use anyhow::Context;
@@ -356,7 +355,7 @@ fn spectrum(args: SpectrumArgs) -> anyhow::Result<()> {
         for (e, r, o) in rows {
             text.push_str(&format!("{e},{r},{o}\n"));
         }
-        write_atomically(out, &text)?;
+        super::output::write_atomically(out, &text)?;
     }
     Ok(())
 }
@@ -395,7 +394,7 @@ fn counts(args: CountsArgs) -> anyhow::Result<()> {
         ));
     }
     if let Some(out) = &args.out {
-        write_atomically(out, &text)?;
+        super::output::write_atomically(out, &text)?;
     }
     Ok(())
 }
@@ -486,7 +485,7 @@ fn curve(args: CurveArgs) -> anyhow::Result<()> {
             }
             text.push('\n');
         }
-        write_atomically(out, &text)?;
+        super::output::write_atomically(out, &text)?;
     }
     Ok(())
 }
@@ -523,31 +522,4 @@ fn sample_indices(n: usize, max: usize) -> Vec<usize> {
     let mut v: Vec<usize> = (0..max).map(|k| k * (n - 1) / (max - 1)).collect();
     v.dedup();
     v
-}
-
-/// Writes `text` to `path` through a temporary file in the same folder and
-/// a rename, so no partial file is left behind.
-fn write_atomically(path: &Path, text: &str) -> anyhow::Result<()> {
-    let dir = path
-        .parent()
-        .filter(|d| !d.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .with_context(|| format!("{}: not a file name", path.display()))?;
-    let tmp = dir.join(format!(
-        ".{}.tmp{}",
-        name.to_string_lossy(),
-        std::process::id()
-    ));
-    let result = (|| -> std::io::Result<()> {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(text.as_bytes())?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result.with_context(|| format!("writing {}", path.display()))
 }

@@ -3,7 +3,7 @@
 use anyhow::Context;
 use recoil::events::{FileCombination, Inspection, InvisibleSet, ReadOptions, inspect_sample};
 use std::io::{IsTerminal, Write};
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// How several files are combined (see the weight convention in the README).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -95,7 +95,8 @@ pub fn run(args: InspectArgs) -> anyhow::Result<()> {
     print_report(&mut out, &report)?;
     if let Some(path) = &args.out {
         let json = serde_json::to_vec_pretty(&report).context("encoding the report as JSON")?;
-        write_atomically(path, &json).with_context(|| format!("writing {}", path.display()))?;
+        super::output::write_atomically(path, &json)
+            .with_context(|| format!("writing {}", path.display()))?;
     }
     Ok(())
 }
@@ -238,28 +239,4 @@ fn print_report(out: &mut impl Write, r: &Inspection) -> std::io::Result<()> {
         writeln!(out, "  {:<30} {} {:>9.1}", name, vals.join(" "), q.max)?;
     }
     Ok(())
-}
-
-/// Writes `bytes` to `path` through a temporary file in the same folder and
-/// a rename, so no partial file is left behind.
-fn write_atomically(path: &Path, bytes: &[u8]) -> std::io::Result<()> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "out".into());
-    let tmp = dir.join(format!(".{name}.tmp{}", std::process::id()));
-    let res = (|| {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if res.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    res
 }

@@ -373,27 +373,6 @@ fn print_table(rows: &[&Row], lumi: bool) {
     }
 }
 
-/// Writes `text` to `path` through a temporary file in the same folder.
-fn write_atomic(path: &Path, text: &str) -> anyhow::Result<()> {
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .with_context(|| format!("{}: not a file name", path.display()))?;
-    let tmp = dir.join(format!(
-        ".{}.tmp{}",
-        name.to_string_lossy(),
-        std::process::id()
-    ));
-    std::fs::write(&tmp, text).with_context(|| format!("{}: cannot write", tmp.display()))?;
-    std::fs::rename(&tmp, path).with_context(|| {
-        let _ = std::fs::remove_file(&tmp);
-        format!("{}: cannot move the output into place", path.display())
-    })
-}
-
 /// Runs `recoil limit`.
 pub fn run(args: LimitArgs) -> anyhow::Result<()> {
     let opts = args.options()?;
@@ -510,7 +489,7 @@ pub fn run(args: LimitArgs) -> anyhow::Result<()> {
             combined,
         };
         let text = serde_json::to_string_pretty(&report).context("encoding the results")?;
-        write_atomic(out, &text)?;
+        super::output::write_atomically(out, &text)?;
     }
     Ok(())
 }

@@ -7,6 +7,7 @@ mod direct;
 mod inspect;
 mod limit;
 mod merge;
+mod output;
 mod plot;
 mod recast;
 mod scan;

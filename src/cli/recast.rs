@@ -249,14 +249,17 @@ pub fn run(args: RecastArgs) -> anyhow::Result<()> {
     if let Some(dir) = &args.out {
         std::fs::create_dir_all(dir)
             .with_context(|| format!("creating output folder {}", dir.display()))?;
-        write_atomic(
+        super::output::write_atomically(
             &dir.join("yields.csv"),
             &yields_csv(&cfg, &yields, &limits, &independent)?,
         )?;
-        write_atomic(&dir.join("cutflow.csv"), &cutflow_csv(&yields)?)?;
-        write_atomic(&dir.join("distributions.csv"), &distributions_csv(&yields)?)?;
+        super::output::write_atomically(&dir.join("cutflow.csv"), &cutflow_csv(&yields)?)?;
+        super::output::write_atomically(
+            &dir.join("distributions.csv"),
+            &distributions_csv(&yields)?,
+        )?;
         let json = result_json(&args, &cfg, &weight_names, &yields, &limits, &independent)?;
-        write_atomic(&dir.join("result.json"), json.as_bytes())?;
+        super::output::write_atomically(&dir.join("result.json"), json.as_bytes())?;
         writeln!(
             out,
             "\nwrote yields.csv, cutflow.csv, distributions.csv, result.json to {}",
@@ -746,27 +749,6 @@ fn result_json(
     Ok(serde_json::to_string_pretty(&value)? + "\n")
 }
 
-/// Writes `bytes` to a temporary file in the target's folder, then renames
-/// it over the target, so no partial file is ever left under its name.
-fn write_atomic(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    let dir = path.parent().unwrap_or_else(|| Path::new("."));
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
-    let write = || -> std::io::Result<()> {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    };
-    write().map_err(|e| {
-        let _ = std::fs::remove_file(&tmp);
-        anyhow::Error::new(e).context(format!("writing {}", path.display()))
-    })
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -935,8 +917,8 @@ mod tests {
     fn atomic_write_leaves_no_temporary_file() {
         let dir = tempfile::tempdir().unwrap();
         let target = dir.path().join("x.csv");
-        write_atomic(&target, b"a,b\n").unwrap();
-        write_atomic(&target, b"c,d\n").unwrap();
+        crate::cli::output::write_atomically(&target, b"a,b\n").unwrap();
+        crate::cli::output::write_atomically(&target, b"c,d\n").unwrap();
         assert_eq!(std::fs::read(&target).unwrap(), b"c,d\n");
         assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
     }

@@ -6,7 +6,6 @@ use recoil::model::{
     self, BoundaryPoint, ColliderCurve, CouplingLimit, CouplingPath, Couplings, Mediator,
     MediatorKind, ModelError, Nucleon, NucleonCrossSection, NucleonParams, WIDE_WIDTH_OVER_MASS,
 };
-use std::io::Write;
 use std::path::{Path, PathBuf};
 
 /// Translate a simplified s-channel mediator model.
@@ -290,7 +289,7 @@ fn run_point(cfg: &Config, m: &Mediator, mu_limit: Option<f64>) -> anyhow::Resul
             Format::Json => serde_json::to_vec_pretty(&report)?,
             Format::Csv => point_csv(&report)?,
         };
-        write_atomic(path, &bytes)?;
+        super::output::write_atomically(path, &bytes)?;
     }
     Ok(())
 }
@@ -436,7 +435,7 @@ fn run_curve(cfg: &Config, path: &Path, cl: f64) -> anyhow::Result<()> {
                 curves: &curves,
             })?,
         };
-        write_atomic(out, &bytes)?;
+        super::output::write_atomically(out, &bytes)?;
     }
     Ok(())
 }
@@ -495,31 +494,4 @@ fn curve_csv(curves: &[ColliderCurve]) -> anyhow::Result<Vec<u8>> {
         }
     }
     Ok(w.into_inner()?)
-}
-
-/// Writes `bytes` to a temporary file in the folder of `path`, then renames
-/// it over `path`, so no partial output is ever left behind.
-fn write_atomic(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    let dir = match path.parent() {
-        Some(d) if !d.as_os_str().is_empty() => d.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .with_context(|| format!("--out {}: not a file name", path.display()))?;
-    let tmp = dir.join(format!(
-        ".{}.tmp{}",
-        name.to_string_lossy(),
-        std::process::id()
-    ));
-    let result = (|| -> std::io::Result<()> {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result.with_context(|| format!("writing {}", path.display()))
 }
