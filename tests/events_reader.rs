@@ -153,6 +153,71 @@ fn differential_against_lhef_crate_fixed_notation() {
     }
 }
 
+/// Our `<init>` reading against the `lhef` crate's HEPRUP of the same file.
+fn assert_init_like_lhef_crate(path: &Path) {
+    let ours = recoil::events::read_file_info(path).expect("our header");
+    let f = std::fs::File::open(path).expect("open");
+    let mut head = [0u8; 2];
+    std::io::Read::read_exact(&mut std::fs::File::open(path).expect("open"), &mut head)
+        .expect("magic");
+    let reader: Box<dyn std::io::BufRead> = if head == [0x1f, 0x8b] {
+        Box::new(std::io::BufReader::new(flate2::read::MultiGzDecoder::new(
+            f,
+        )))
+    } else {
+        Box::new(std::io::BufReader::new(f))
+    };
+    let theirs = lhef::Reader::new(reader)
+        .expect("lhef header")
+        .heprup()
+        .clone();
+    let at = path.display();
+    assert_eq!(ours.beam_ids, theirs.IDBMUP, "{at}");
+    assert_eq!(
+        ours.beam_energies_gev.map(f64::to_bits),
+        theirs.EBMUP.map(f64::to_bits),
+        "{at}"
+    );
+    assert_eq!(ours.pdf_groups, theirs.PDFGUP, "{at}");
+    assert_eq!(ours.pdf_sets, theirs.PDFSUP, "{at}");
+    assert_eq!(ours.idwtup, theirs.IDWTUP, "{at}");
+    assert_eq!(ours.processes.len(), theirs.NPRUP as usize, "{at}");
+    for (k, p) in ours.processes.iter().enumerate() {
+        assert_eq!(p.id, theirs.LPRUP[k], "{at}");
+        assert_eq!(p.xsec_pb.to_bits(), theirs.XSECUP[k].to_bits(), "{at}");
+        assert_eq!(p.xsec_err_pb.to_bits(), theirs.XERRUP[k].to_bits(), "{at}");
+        assert_eq!(p.xmax.to_bits(), theirs.XMAXUP[k].to_bits(), "{at}");
+    }
+}
+
+// Reference: the `lhef` crate 0.6.0's HEPRUP (an independent reader of
+// `<init>`), on generated files in both notations, gzip-compressed, and on
+// every committed demo file (written by the `lhef` crate's writer).
+#[test]
+fn init_block_like_lhef_crate() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let spec = Spec {
+        n_events: 3,
+        idwtup: -4,
+        processes: vec![(1, 2.0, 0.1), (7, 1.0e-5, 3.25e-7)],
+        weight_names: names(2),
+        ..Default::default()
+    };
+    let text = lhef_string(&spec);
+    assert_init_like_lhef_crate(&write(dir.path(), "a.lhe", text.as_bytes()));
+    assert_init_like_lhef_crate(&write(dir.path(), "a.lhe.gz", &gzip(text.as_bytes())));
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-events");
+    let mut n = 0;
+    for e in std::fs::read_dir(&demo).expect("demo-events") {
+        let p = e.expect("entry").path();
+        if p.to_string_lossy().ends_with(".lhe.gz") {
+            assert_init_like_lhef_crate(&p);
+            n += 1;
+        }
+    }
+    assert!(n >= 24, "demo files: {n}");
+}
+
 // Reference: the `lhef` crate's own writer (shortest round-trip notation,
 // e.g. `84515.12`, `1e-5`) read back by the `lhef` crate.
 #[test]
@@ -198,6 +263,92 @@ fn differential_against_lhef_crate_writer_notation() {
     for (i, (a, b)) in ours.iter().zip(&theirs).enumerate() {
         assert_eq!(bits(a), bits(b), "event {}", i + 1);
     }
+}
+
+// Reference: the same events in the usual `<wgt id='…'> v </wgt>` layout
+// (read by the `lhef` crate above). LHEF 3.0 (arXiv:1405.1067, Sec. 3.2)
+// fixes the tag, not the spacing, the quote character, the order of the
+// `<wgt>` lines or extra attributes; every such layout must give the same
+// weights, bit for bit, as the usual one.
+#[test]
+fn weight_lines_in_other_layouts_read_like_the_usual_one() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let t = lhef_string(&Spec {
+        n_events: 40,
+        weight_names: names(3),
+        ..Default::default()
+    });
+    let usual = write(dir.path(), "usual.lhe", t.as_bytes());
+    let want = lhef_reference(&usual);
+    assert_eq!(events_of(std::slice::from_ref(&usual)), want);
+    let mut k = 0usize;
+    let mut edited = String::new();
+    let mut block: Vec<String> = Vec::new();
+    for line in t.lines() {
+        if line.starts_with("<wgt ") {
+            // `<wgt id='1001'> -1.1250000000e+00 </wgt>` → id and value text.
+            let (id, rest) = line["<wgt id='".len()..]
+                .split_once("'>")
+                .expect("usual layout");
+            let v = rest.trim().trim_end_matches("</wgt>").trim();
+            let short = v.parse::<f64>().expect("number").to_string();
+            block.push(match k % 5 {
+                0 => format!("<wgt id=\"{id}\">{short}</wgt>"),
+                1 => format!("   <wgt id='{id}'>\t{v}</wgt>\r"),
+                2 => format!("<wgt  id = '{id}' info='scale'> {v} </wgt>"),
+                3 => format!("<wgt id='{id}'>{short}</wgt>   "),
+                _ => line.to_string(),
+            });
+            k += 1;
+            continue;
+        }
+        if !block.is_empty() {
+            // Reverse the order of the lines in every third event.
+            if k.is_multiple_of(3) {
+                block.reverse();
+            }
+            for b in block.drain(..) {
+                edited.push_str(&b);
+                edited.push('\n');
+            }
+        }
+        edited.push_str(line);
+        edited.push('\n');
+    }
+    let other = write(dir.path(), "other.lhe", edited.as_bytes());
+    let got = events_of(std::slice::from_ref(&other));
+    assert_eq!(got.len(), want.len());
+    for (i, (a, b)) in got.iter().zip(&want).enumerate() {
+        assert_eq!(bits(a), bits(b), "event {}", i + 1);
+    }
+    // A repeated name is an error in either layout.
+    let n = line_of(&t, 20, "<wgt id='1002'>");
+    let dup = edit_line(&t, n, |l| l.replace("1002", "1001"));
+    let e = err_of(dup.as_bytes());
+    assert!(
+        e.contains(&format!("line {n}: weight id '1001' appears twice")),
+        "{e}"
+    );
+    let dup = edit_line(&t, n, |_| {
+        "<wgt id='1002'> 1.5 </wgt>\n<wgt id='1002'> 1.5 </wgt>".into()
+    });
+    let e = err_of(dup.as_bytes());
+    assert!(
+        e.contains(&format!("line {}: weight id '1002' appears twice", n + 1)),
+        "{e}"
+    );
+    // Out of order, then a repeat that is in the expected place.
+    let first = line_of(&t, 20, "<wgt id='1001'>");
+    let mut dup = edit_line(&t, first, |_| "<wgt id='1003'> 1.5 </wgt>".into());
+    dup = edit_line(&dup, first + 2, |_| "<wgt id='1003'> 2.5 </wgt>".into());
+    let e = err_of(dup.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "line {}: weight id '1003' appears twice",
+            first + 2
+        )),
+        "{e}"
+    );
 }
 
 // Determinism (CONVENTIONS.md): the same summary and chunking on 1 and 2

@@ -76,7 +76,7 @@ fn clinger(mant: u64, q: i32) -> Option<f64> {
 
 /// The layout `±d.dddddddddde±dd` (17 bytes) that the common LHEF writers
 /// use for every real, read without loops; the value and 17, or `None`.
-#[inline]
+#[inline(always)]
 fn fixed_layout(b: &[u8]) -> Option<(f64, usize)> {
     if b.len() < 17
         || !matches!(b[0], b'+' | b'-')
@@ -103,7 +103,7 @@ fn fixed_layout(b: &[u8]) -> Option<(f64, usize)> {
 
 /// The fast path on a prefix of `s`: the value and the number of bytes
 /// used, or `None` when the prefix is not in the fast-path form.
-#[inline]
+#[inline(never)]
 fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
     if let Some(r) = fixed_layout(s) {
         return Some(r);
@@ -198,13 +198,21 @@ fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
     Some((if neg { -v } else { v }, i))
 }
 
-/// A position in a line, for reading fields in the usual case in one scan.
-/// Every method returns `None` when the next field is not in the fast
-/// form (or is missing); callers then re-read the line field by field to
-/// report the exact problem.
+/// A position in event text, for reading the fields of one line in the
+/// usual case in one scan, without finding the end of the line first.
+/// Fields are separated by blanks (space, tab, CR); a newline ends the
+/// line. Every method returns `None` when the next field is not in the
+/// fast form (or is missing); callers then re-read the line field by field
+/// to report the exact problem.
 pub struct Cursor<'a> {
     s: &'a [u8],
     i: usize,
+}
+
+/// True for a byte that ends a field: a blank or the newline.
+#[inline(always)]
+fn ends_a_field(c: u8) -> bool {
+    c == b' ' || c == b'\n' || c == b'\t' || c == b'\r'
 }
 
 impl<'a> Cursor<'a> {
@@ -214,25 +222,59 @@ impl<'a> Cursor<'a> {
         Self { s, i: 0 }
     }
 
-    #[inline]
+    /// Skips blanks (not the newline), eight bytes at a time while they are
+    /// spaces.
+    #[inline(always)]
     fn skip_blanks(&mut self) {
-        while self.i < self.s.len() && is_blank(self.s[self.i]) {
-            self.i += 1;
+        loop {
+            if let Some(w) = self.s.get(self.i..self.i + 8) {
+                // invariant: the slice has exactly 8 bytes
+                let y = u64::from_le_bytes(w.try_into().unwrap()) ^ 0x2020_2020_2020_2020;
+                if y == 0 {
+                    self.i += 8;
+                    continue;
+                }
+                // Lowest byte that is not a space (exact per-byte test,
+                // common practice): its high bit is set in `t`.
+                let t = ((y & 0x7F7F_7F7F_7F7F_7F7F).wrapping_add(0x7F7F_7F7F_7F7F_7F7F) | y)
+                    & 0x8080_8080_8080_8080;
+                self.i += (t.trailing_zeros() / 8) as usize;
+            }
+            match self.s.get(self.i) {
+                Some(b' ' | b'\t' | b'\r') => self.i += 1,
+                _ => return,
+            }
         }
     }
 
-    #[inline]
+    #[inline(always)]
     fn ends_field(&self, at: usize) -> bool {
-        at == self.s.len() || is_blank(self.s[at])
+        self.s.get(at).is_none_or(|&c| ends_a_field(c))
     }
 
     /// The next field as a number in the fast-path form.
-    #[inline]
+    #[inline(always)]
     pub fn f64(&mut self) -> Option<f64> {
+        self.number(false)
+    }
+
+    /// The next field as a number in the fast-path form that may also be
+    /// followed directly by `<` (as in `<wgt id='1'>1.5</wgt>`).
+    #[inline]
+    pub fn f64_before_tag(&mut self) -> Option<f64> {
+        self.number(true)
+    }
+
+    #[inline(always)]
+    fn number(&mut self, tag_may_follow: bool) -> Option<f64> {
         self.skip_blanks();
-        let (v, used) = fast_f64(&self.s[self.i..])?;
+        let r = self.s.get(self.i..)?;
+        let (v, used) = match fixed_layout(r) {
+            Some(x) => x,
+            None => fast_f64(r)?,
+        };
         let end = self.i + used;
-        if !self.ends_field(end) {
+        if !(self.ends_field(end) || (tag_may_follow && self.s.get(end) == Some(&b'<'))) {
             return None;
         }
         self.i = end;
@@ -240,35 +282,66 @@ impl<'a> Cursor<'a> {
     }
 
     /// The next field as an integer that fits an `i32`.
-    #[inline]
+    #[inline(always)]
     pub fn i32(&mut self) -> Option<i32> {
         self.skip_blanks();
-        let r = &self.s[self.i..];
-        let mut k = usize::from(matches!(r.first(), Some(b'-' | b'+')));
+        let r = self.s.get(self.i..)?;
+        let neg = r.first() == Some(&b'-');
+        let mut k = usize::from(neg || r.first() == Some(&b'+'));
         let start = k;
         let mut v: i64 = 0;
-        while k < r.len() && r[k].is_ascii_digit() {
+        while let Some(&c) = r.get(k) {
+            let d = c.wrapping_sub(b'0');
+            if d > 9 {
+                break;
+            }
             if k - start >= 10 {
                 return None;
             }
-            v = v * 10 + i64::from(r[k] - b'0');
+            v = v * 10 + i64::from(d);
             k += 1;
         }
         if k == start || !self.ends_field(self.i + k) {
             return None;
         }
-        if r[0] == b'-' {
-            v = -v;
-        }
         self.i += k;
-        i32::try_from(v).ok()
+        i32::try_from(if neg { -v } else { v }).ok()
     }
 
-    /// True when only blanks remain.
+    /// Expects `lit` after optional blanks and consumes it.
     #[inline]
-    pub fn at_end(&mut self) -> bool {
+    pub fn literal(&mut self, lit: &[u8]) -> Option<()> {
         self.skip_blanks();
-        self.i == self.s.len()
+        if self.s.get(self.i..)?.starts_with(lit) {
+            self.i += lit.len();
+            Some(())
+        } else {
+            None
+        }
+    }
+
+    /// The text after the cursor.
+    #[inline]
+    pub fn rest_bytes(&self) -> &'a [u8] {
+        self.s.get(self.i..).unwrap_or_default()
+    }
+
+    /// Moves the cursor `n` bytes on (to at most the end of the text).
+    #[inline]
+    pub fn advance(&mut self, n: usize) {
+        self.i = (self.i + n).min(self.s.len());
+    }
+
+    /// When only blanks remain on the line: the number of bytes read,
+    /// including the newline if there is one.
+    #[inline(always)]
+    pub fn line_end(&mut self) -> Option<usize> {
+        self.skip_blanks();
+        match self.s.get(self.i) {
+            None => Some(self.i),
+            Some(b'\n') => Some(self.i + 1),
+            Some(_) => None,
+        }
     }
 }
 
@@ -439,9 +512,27 @@ mod tests {
         assert_eq!(c.i32(), None); // "7x" is not an integer
         let mut c = Cursor::new(b"1e2 ");
         assert_eq!(c.f64(), Some(100.0));
-        assert!(c.at_end());
+        assert_eq!(c.line_end(), Some(4));
         assert_eq!(Cursor::new(b"3000000000").i32(), None);
+        assert_eq!(Cursor::new(b"-2147483648").i32(), Some(i32::MIN));
         assert_eq!(Cursor::new(b"1.0").i32(), None);
+        // A newline ends a field and the line; blanks are not skipped past it.
+        let text = b"        21 -1\t+1.0000000000e+00 \r\n  7\n";
+        let mut c = Cursor::new(text);
+        assert_eq!(c.i32(), Some(21));
+        assert_eq!(c.i32(), Some(-1));
+        assert_eq!(c.f64(), Some(1.0));
+        assert_eq!(c.line_end(), Some(text.len() - 4));
+        let mut c = Cursor::new(b"  5\n6");
+        assert_eq!(c.i32(), Some(5));
+        assert_eq!(c.i32(), None);
+        assert_eq!(Cursor::new(b"5 x\n").line_end(), None);
+        let mut c = Cursor::new(b"> 1.5</wgt> \n");
+        assert_eq!(c.literal(b">"), Some(()));
+        assert_eq!(c.f64_before_tag(), Some(1.5));
+        assert_eq!(c.literal(b"</wgt>"), Some(()));
+        assert_eq!(c.line_end(), Some(13));
+        assert_eq!(Cursor::new(b"1.5</wgt>").f64(), None);
     }
 
     #[test]

@@ -72,6 +72,20 @@ impl<'a> Lines<'a> {
         self.line += 1;
         Some(l)
     }
+
+    /// The text from the start of the next line to the end of the chunk.
+    #[inline]
+    fn rest(&self) -> &'a [u8] {
+        self.rest
+    }
+
+    /// Steps over the next line, read in place as its first `len` bytes
+    /// (newline included when there is one).
+    #[inline]
+    fn step_over(&mut self, len: usize) {
+        self.rest = &self.rest[len..];
+        self.line += 1;
+    }
 }
 
 /// Parses a chunk. `data` starts at a line start outside any event.
@@ -261,13 +275,14 @@ fn parse_event(
 
     // Particle lines.
     for i in 0..nup {
+        if let Some((p, len)) = fast_particle(lines.rest()) {
+            ev.particles.push(p);
+            lines.step_over(len);
+            continue;
+        }
         let Some(raw) = lines.next_line() else {
             return Err(truncated(lines.line));
         };
-        if let Some(p) = fast_particle(raw) {
-            ev.particles.push(p);
-            continue;
-        }
         // Slow path: read field by field to name the problem exactly.
         let line_no = lines.line;
         let mut c = [&b""[..]; 13];
@@ -352,6 +367,25 @@ fn parse_event(
     let mut saw_weights = false;
     let mut n_named = 0usize;
     loop {
+        // Fast path: the `<wgt>` line of the next declared name, in the
+        // usual form; anything else is read and checked below.
+        if !in_weights
+            && let Some(name) = file.weight_names.get(n_named)
+            && let Some((v, len)) = fast_named_weight(lines.rest(), name.as_bytes())
+        {
+            lines.step_over(len);
+            saw_weights = true;
+            if !named {
+                named = true;
+                ev.weights.resize(n_names, f64::NAN);
+            }
+            // invariant: n_named < n_names == ev.weights.len()
+            if !std::mem::replace(&mut ev.weights[n_named], v).is_nan() {
+                return Err(err(lines.line, format!("weight id '{name}' appears twice")));
+            }
+            n_named += 1;
+            continue;
+        }
         let Some(raw) = lines.next_line() else {
             return Err(truncated(lines.line));
         };
@@ -502,11 +536,37 @@ fn parse_event(
     Ok(())
 }
 
-/// Reads a particle line in one scan when every field is in the usual
-/// form and finite; `None` sends the line to the checking slow path.
+/// Reads `<wgt id='NAME'> value </wgt>` (either quote, blanks optional
+/// around the value) at the start of `text` when NAME is `name` and the
+/// value is in the fast-path form, with nothing else on the line: the
+/// value and the length of the line with its newline. `None` sends the
+/// line to the checking slow path, which accepts everything this accepts
+/// with the same result.
 #[inline]
-fn fast_particle(raw: &[u8]) -> Option<Particle> {
-    let mut c = Cursor::new(raw);
+fn fast_named_weight(text: &[u8], name: &[u8]) -> Option<(f64, usize)> {
+    let mut c = Cursor::new(text);
+    c.literal(b"<wgt id=")?;
+    let open = c.rest_bytes();
+    let quote = *open.first()?;
+    if !(quote == b'\'' || quote == b'"')
+        || open.get(1..1 + name.len())? != name
+        || open.get(1 + name.len()..3 + name.len())? != [quote, b'>']
+    {
+        return None;
+    }
+    c.advance(3 + name.len());
+    let v = c.f64_before_tag()?;
+    c.literal(b"</wgt>")?;
+    Some((v, c.line_end()?))
+}
+
+/// Reads a particle line at the start of `text` in one scan when every
+/// field is in the usual form and finite: the particle and the length of
+/// the line with its newline. `None` sends the line to the checking slow
+/// path.
+#[inline]
+fn fast_particle(text: &[u8]) -> Option<(Particle, usize)> {
+    let mut c = Cursor::new(text);
     let id = c.i32()?;
     let status = c.i32()?;
     let m1 = u32::try_from(c.i32()?).ok()?;
@@ -519,19 +579,20 @@ fn fast_particle(raw: &[u8]) -> Option<Particle> {
     let mass_gev = c.f64()?;
     let lifetime_mm = c.f64()?;
     let spin = c.f64()?;
-    if !c.at_end() {
-        return None;
-    }
-    Some(Particle {
-        id,
-        status,
-        mothers: [m1, m2],
-        colour,
-        p4: P4::new(e, px, py, pz),
-        mass_gev,
-        lifetime_mm,
-        spin,
-    })
+    let len = c.line_end()?;
+    Some((
+        Particle {
+            id,
+            status,
+            mothers: [m1, m2],
+            colour,
+            p4: P4::new(e, px, py, pz),
+            mass_gev,
+            lifetime_mm,
+            spin,
+        },
+        len,
+    ))
 }
 
 /// Splits `line` into at most `out.len()` fields; returns the number of
