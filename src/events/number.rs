@@ -74,31 +74,98 @@ fn clinger(mant: u64, q: i32) -> Option<f64> {
     }
 }
 
-/// The layout `±d.dddddddddde±dd` (17 bytes) that the common LHEF writers
-/// use for every real, read without loops; the value and 17, or `None`.
+/// The layout `[±]d.dddddddddde±dd` (17 bytes with the sign, 16 without)
+/// that the common LHEF writers use for every real, read without loops;
+/// the value and the bytes used, or `None`.
 #[inline(always)]
-fn fixed_layout(b: &[u8]) -> Option<(f64, usize)> {
-    if b.len() < 17
-        || !matches!(b[0], b'+' | b'-')
-        || b[2] != b'.'
-        || b[13] | 0x20 != b'e'
-        || !matches!(b[14], b'+' | b'-')
-    {
+fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
+    let signed = matches!(s.first(), Some(b'+' | b'-'));
+    let b = s.get(usize::from(signed)..)?;
+    if b.len() < 16 || b[1] != b'.' || b[12] | 0x20 != b'e' || !matches!(b[13], b'+' | b'-') {
         return None;
     }
     let d = |k: usize| u64::from(b[k].wrapping_sub(b'0'));
-    let (d0, d11, d12, e1, e2) = (d(1), d(11), d(12), d(15), d(16));
+    let (d0, d10, d11, e1, e2) = (d(0), d(10), d(11), d(14), d(15));
     // invariant: the slice has exactly 8 bytes
-    let x = u64::from_le_bytes(b[3..11].try_into().unwrap());
-    if d0 > 9 || d11 > 9 || d12 > 9 || e1 > 9 || e2 > 9 || !all_digits(x) {
+    let x = u64::from_le_bytes(b[2..10].try_into().unwrap());
+    if d0 > 9 || d10 > 9 || d11 > 9 || e1 > 9 || e2 > 9 || !all_digits(x) {
         return None;
     }
     // 11 significant digits < 2^53: exact in an f64.
-    let mant = d0 * 10_000_000_000 + eight_digits(x) * 100 + d11 * 10 + d12;
+    let mant = d0 * 10_000_000_000 + eight_digits(x) * 100 + d10 * 10 + d11;
     let exp = (e1 * 10 + e2) as i32;
-    let q = if b[14] == b'-' { -exp } else { exp } - 10;
+    let q = if b[13] == b'-' { -exp } else { exp } - 10;
     let v = clinger(mant, q)?;
-    Some((if b[0] == b'-' { -v } else { v }, 17))
+    Some((if s[0] == b'-' { -v } else { v }, 16 + usize::from(signed)))
+}
+
+/// 10⁰ … 10⁸ as integers.
+const POW10_U64: [u64; 9] = [
+    1,
+    10,
+    100,
+    1_000,
+    10_000,
+    100_000,
+    1_000_000,
+    10_000_000,
+    100_000_000,
+];
+
+/// Number of leading ASCII digits (0–8) among the 8 bytes of `x`
+/// (little-endian, first byte lowest). Exact up to the first non-digit:
+/// a carry out of a non-digit byte only disturbs the bytes after it.
+#[inline(always)]
+fn leading_digits(x: u64) -> usize {
+    let not_digit = ((x & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030)
+        | ((x.wrapping_add(0x0606_0606_0606_0606) & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030);
+    // High bit of each non-zero byte (exact per byte, common practice).
+    let t = ((not_digit & 0x7F7F_7F7F_7F7F_7F7F).wrapping_add(0x7F7F_7F7F_7F7F_7F7F) | not_digit)
+        & 0x8080_8080_8080_8080;
+    (t.trailing_zeros() / 8) as usize
+}
+
+/// Reads a run of decimal digits at `s[*i..]` into `mant` (as more
+/// significant digits followed by these), eight at a time. Returns the
+/// number of digits, or `None` when the total would exceed 19 (which
+/// could overflow a `u64`).
+#[inline(always)]
+fn digit_run(s: &[u8], i: &mut usize, mant: &mut u64, n_before: usize) -> Option<usize> {
+    let start = *i;
+    while let Some(w) = s.get(*i..*i + 8) {
+        // invariant: the slice has exactly 8 bytes
+        let x = u64::from_le_bytes(w.try_into().unwrap());
+        let n = leading_digits(x);
+        if n == 0 {
+            return Some(*i - start);
+        }
+        if n_before + (*i - start) + n > 19 {
+            return None;
+        }
+        // The n digits, padded in front with '0' bytes to eight.
+        let padded = if n == 8 {
+            x
+        } else {
+            (x << (8 * (8 - n))) | (0x3030_3030_3030_3030 >> (8 * n))
+        };
+        *mant = *mant * POW10_U64[n] + eight_digits(padded);
+        *i += n;
+        if n < 8 {
+            return Some(*i - start);
+        }
+    }
+    while let Some(&c) = s.get(*i) {
+        let d = c.wrapping_sub(b'0');
+        if d > 9 {
+            break;
+        }
+        if n_before + (*i - start) + 1 > 19 {
+            return None;
+        }
+        *mant = *mant * 10 + u64::from(d);
+        *i += 1;
+    }
+    Some(*i - start)
 }
 
 /// The fast path on a prefix of `s`: the value and the number of bytes
@@ -109,54 +176,16 @@ fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
         return Some(r);
     }
     let n = s.len();
-    let mut i = 0;
-    let neg = match *s.first()? {
-        b'-' => {
-            i = 1;
-            true
-        }
-        b'+' => {
-            i = 1;
-            false
-        }
-        _ => false,
-    };
+    let neg = s.first() == Some(&b'-');
+    let mut i = usize::from(neg || s.first() == Some(&b'+'));
     let mut mant: u64 = 0;
-    let int_start = i;
-    while i < n && s[i].is_ascii_digit() {
-        mant = mant * 10 + u64::from(s[i] - b'0');
-        i += 1;
-        if i - int_start > 19 {
-            return None;
-        }
-    }
-    let mut n_digits = i - int_start;
+    let mut n_digits = digit_run(s, &mut i, &mut mant, 0)?;
     let mut frac_digits: i32 = 0;
     if i < n && s[i] == b'.' {
         i += 1;
-        let frac_start = i;
-        while i + 8 <= n {
-            // invariant: the slice has exactly 8 bytes
-            let x = u64::from_le_bytes(s[i..i + 8].try_into().unwrap());
-            if !all_digits(x) {
-                break;
-            }
-            if n_digits + 8 > 19 {
-                return None;
-            }
-            mant = mant * 100_000_000 + eight_digits(x);
-            n_digits += 8;
-            i += 8;
-        }
-        while i < n && s[i].is_ascii_digit() {
-            if n_digits + 1 > 19 {
-                return None;
-            }
-            mant = mant * 10 + u64::from(s[i] - b'0');
-            n_digits += 1;
-            i += 1;
-        }
-        frac_digits = (i - frac_start) as i32;
+        let f = digit_run(s, &mut i, &mut mant, n_digits)?;
+        n_digits += f;
+        frac_digits = f as i32;
     }
     if n_digits == 0 {
         return None;
@@ -477,6 +506,21 @@ mod tests {
             "0.000000000000000000000000001",
             "1.",
             ".5",
+            // Unsigned fixed layout, digit runs of every length around 8.
+            "5.1517859143e+02",
+            "0.0000e+00",
+            "9.0000e+00",
+            "12345678",
+            "123456789",
+            "1234567.1234567",
+            "12345678.12345678",
+            "123456789.0123456789",
+            "9999999999999999999",
+            "99999999999999999999",
+            "0.00000000000000000001",
+            "-00000012.50",
+            "7.5467710000e-03",
+            "1.23456789012E+4",
         ] {
             check(s);
         }
