@@ -206,3 +206,55 @@ fn cross_section_and_luminosity_options_scale_the_signal() {
         );
     }
 }
+
+// Regression check (the "stored numbers reproduced exactly"): the
+// yields and cut-flow of one demo sample with seed 7, stored under
+// tests/fixtures/recast/ from a run of this code on 2026-12-02. They are
+// not a physics reference (the yields are checked against hand-computed
+// values in tests/search.rs); any change to the reader, the detector, the
+// selection or the statistics that moves a single bit shows up here, on 1
+// and on 2 threads alike. Regenerate with
+// `recoil recast --search recasts/searches/demo-jet-met.toml --seed 7 --out DIR
+// demo-events/tenebris_mmed1500_mdm1.lhe.gz` after a deliberate change.
+#[test]
+fn demo_sample_reproduces_stored_numbers() {
+    let events = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/demo-events/tenebris_mmed1500_mdm1.lhe.gz"
+    );
+    let fixtures = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/recast");
+    for threads in ["1", "2"] {
+        let dir = tempfile::tempdir().unwrap();
+        let out = Command::new(env!("CARGO_BIN_EXE_recoil"))
+            .args([
+                "recast",
+                "--search",
+                DEMO,
+                "--seed",
+                "7",
+                "--threads",
+                threads,
+            ])
+            .arg("--out")
+            .arg(dir.path())
+            .arg(events)
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        for (file, stored) in [
+            ("yields.csv", "mmed1500_mdm1_seed7_yields.csv"),
+            ("cutflow.csv", "mmed1500_mdm1_seed7_cutflow.csv"),
+        ] {
+            let got = std::fs::read_to_string(dir.path().join(file)).unwrap();
+            let want = std::fs::read_to_string(fixtures.join(stored)).unwrap();
+            for (k, (g, w)) in got.lines().zip(want.lines()).enumerate() {
+                assert_eq!(g, w, "{file} line {} on {threads} thread(s)", k + 1);
+            }
+            assert_eq!(got.lines().count(), want.lines().count(), "{file}");
+        }
+    }
+}
