@@ -4,31 +4,37 @@
 use anyhow::Context;
 use recoil::model::{
     self, BoundaryPoint, ColliderCurve, CouplingLimit, CouplingPath, Couplings, Mediator,
-    MediatorKind, ModelError, Nucleon, NucleonCrossSection, NucleonParams, WIDE_WIDTH_OVER_MASS,
+    MediatorKind, ModelError, Nucleon, NucleonCrossSection, NucleonParams, ScatteringType,
+    WIDE_WIDTH_OVER_MASS,
 };
+use recoil::scan::{ContourCurve, ScanExclusion};
 use std::path::{Path, PathBuf};
 
 /// Translate a simplified s-channel mediator model.
 ///
 /// Point mode (--mmed and --mdm): partial and total widths, Γ/M, BR(χχ̄)
 /// and the DM–nucleon cross-section (σ_SI for vector and scalar, σ_SD for
-/// axial mediators). Curve mode (--curve FILE): a collider exclusion
-/// boundary (for each m_DM the largest excluded mediator mass) becomes a
-/// limit curve σ(m_DM) in the DM–nucleon plane.
+/// axial mediators). Curve mode (--curve FILE|DIR): a collider exclusion
+/// boundary (for each m_DM the largest excluded mediator mass), given as a
+/// CSV table or as a scan output folder, becomes a limit curve σ(m_DM) in
+/// the DM–nucleon plane.
 #[derive(Debug, clap::Args)]
 pub struct TranslateArgs {
-    /// Mediator type: vector, axial, scalar or pseudoscalar.
+    /// Mediator type: vector, axial, scalar or pseudoscalar. Required except
+    /// with a scan folder, whose result.json names it (if given there, it
+    /// must agree).
     #[arg(long)]
-    pub mediator: String,
-    /// Quark coupling g_q (universal; Yukawa-scaled for scalar and pseudoscalar).
-    #[arg(long, default_value_t = 0.25, allow_negative_numbers = true)]
-    pub gq: f64,
-    /// Dark-matter coupling g_DM.
-    #[arg(long, default_value_t = 1.0, allow_negative_numbers = true)]
-    pub gdm: f64,
-    /// Lepton coupling g_l.
-    #[arg(long, default_value_t = 0.0, allow_negative_numbers = true)]
-    pub gl: f64,
+    pub mediator: Option<String>,
+    /// Quark coupling g_q (universal; Yukawa-scaled for scalar and
+    /// pseudoscalar) [default: 0.25; a scan folder's own otherwise].
+    #[arg(long, allow_negative_numbers = true)]
+    pub gq: Option<f64>,
+    /// Dark-matter coupling g_DM [default: 1; a scan folder's own otherwise].
+    #[arg(long, allow_negative_numbers = true)]
+    pub gdm: Option<f64>,
+    /// Lepton coupling g_l [default: 0; a scan folder's own otherwise].
+    #[arg(long, allow_negative_numbers = true)]
+    pub gl: Option<f64>,
     /// Mediator mass M [GeV] (point mode).
     #[arg(
         long,
@@ -50,13 +56,16 @@ pub struct TranslateArgs {
     /// g_DM, g_DM at fixed g_q, g_q = g_DM).
     #[arg(long, requires = "mmed", allow_negative_numbers = true)]
     pub mu_limit: Option<f64>,
-    /// Curve mode: CSV with columns m_dm_gev,m_med_limit_gev and optionally
-    /// m_med_limit_exp_gev (masses in GeV) at the given couplings.
+    /// Curve mode: a CSV with columns m_dm_gev,m_med_limit_gev and optionally
+    /// m_med_limit_exp_gev (masses in GeV) at the given couplings; or a scan
+    /// output folder (or its result.json): mediator, couplings and CL from
+    /// the scan, every contour of contours.csv translated.
     #[arg(long, required_unless_present = "mmed")]
     pub curve: Option<PathBuf>,
-    /// Confidence level of the collider boundary (curve mode).
-    #[arg(long, default_value_t = 0.95, allow_negative_numbers = true)]
-    pub cl: f64,
+    /// Confidence level of the collider boundary (curve mode) [default: 0.95;
+    /// a scan folder's own otherwise].
+    #[arg(long, allow_negative_numbers = true)]
+    pub cl: Option<f64>,
     /// Target nucleon: proton, neutron or both.
     #[arg(long, default_value = "both")]
     pub nucleon: String,
@@ -86,6 +95,8 @@ enum Mode {
         path: PathBuf,
         cl: f64,
     },
+    /// Curve mode on a scan output folder.
+    Scan(Box<ScanExclusion>),
 }
 
 /// The validated configuration of one `recoil translate` run.
@@ -99,31 +110,127 @@ struct Config {
     out: Option<(PathBuf, Format)>,
 }
 
+/// Default couplings and confidence level when no scan supplies them.
+const DEFAULT_GQ: f64 = 0.25;
+const DEFAULT_GDM: f64 = 1.0;
+const DEFAULT_GL: f64 = 0.0;
+const DEFAULT_CL: f64 = 0.95;
+
+/// A flag given next to a scan folder must agree with the scan's value:
+/// taking either silently would hide a mistake.
+fn agree<T: PartialEq + std::fmt::Display>(
+    flag: &str,
+    given: Option<T>,
+    scan: T,
+    field: &str,
+    file: &Path,
+) -> anyhow::Result<()> {
+    match given {
+        Some(g) if g != scan => anyhow::bail!(
+            "{flag} {g} disagrees with the scan ({field} = {scan} in {}); leave {flag} out to \
+             use the scan's value",
+            file.display()
+        ),
+        _ => Ok(()),
+    }
+}
+
+/// Kind and couplings from a scan folder, with the flags checked against it.
+fn from_scan(a: &TranslateArgs, s: &ScanExclusion) -> anyhow::Result<(MediatorKind, Couplings)> {
+    let given_kind = a
+        .mediator
+        .as_deref()
+        .map(str::parse::<MediatorKind>)
+        .transpose()
+        .context("--mediator")?;
+    agree(
+        "--mediator",
+        given_kind,
+        s.mediator,
+        "mediator",
+        &s.manifest,
+    )?;
+    let results = s.dir.join("results.csv");
+    agree("--gq", a.gq, s.couplings.g_q, "g_q", &results)?;
+    agree("--gdm", a.gdm, s.couplings.g_dm, "g_dm", &results)?;
+    agree(
+        "--gl",
+        a.gl,
+        s.couplings.g_l,
+        "reference_couplings.g_l",
+        &s.manifest,
+    )?;
+    agree("--cl", a.cl, s.cl, "limit.cl", &s.manifest)?;
+    if s.mediator == MediatorKind::Pseudoscalar {
+        return Err(ModelError::MomentumSuppressed)
+            .with_context(|| format!("{}: mediator pseudoscalar", s.manifest.display()));
+    }
+    let couplings = s
+        .model_couplings()
+        .with_context(|| format!("couplings of the scan in {}", s.dir.display()))?;
+    Ok((s.mediator, couplings))
+}
+
 impl TryFrom<&TranslateArgs> for Config {
     type Error = anyhow::Error;
 
     fn try_from(a: &TranslateArgs) -> anyhow::Result<Self> {
-        let kind: MediatorKind = a.mediator.parse().context("--mediator")?;
-        let couplings = Couplings::with_leptons(a.gq, a.gdm, a.gl).context("--gq/--gdm/--gl")?;
         let nucleons = match a.nucleon.trim().to_ascii_lowercase().as_str() {
             "both" => Nucleon::BOTH.to_vec(),
             other => vec![other.parse::<Nucleon>().context("--nucleon")?],
         };
         let params = NucleonParams::by_name(&a.nucleon_set).context("--nucleon-set")?;
-        let mode = match (&a.curve, a.mmed, a.mdm) {
-            (Some(path), _, _) => {
-                if !(a.cl > 0.0 && a.cl < 1.0) {
-                    anyhow::bail!("--cl must be in (0, 1), got {}", a.cl);
+        let scan = match &a.curve {
+            Some(p) if ScanExclusion::is_scan_path(p) => Some(
+                ScanExclusion::read(p)
+                    .with_context(|| format!("reading the scan output {}", p.display()))?,
+            ),
+            _ => None,
+        };
+        let (kind, couplings) = match &scan {
+            Some(s) => from_scan(a, s)?,
+            None => {
+                if let Some(p) = &a.curve
+                    && !p.exists()
+                {
+                    anyhow::bail!(
+                        "--curve {}: no such file or folder (a boundary table .csv or a scan \
+                         output folder)",
+                        p.display()
+                    );
+                }
+                let Some(name) = &a.mediator else {
+                    anyhow::bail!(
+                        "--mediator is required (vector, axial, scalar or pseudoscalar), except \
+                         with --curve on a scan output folder"
+                    );
+                };
+                let kind: MediatorKind = name.parse().context("--mediator")?;
+                let couplings = Couplings::with_leptons(
+                    a.gq.unwrap_or(DEFAULT_GQ),
+                    a.gdm.unwrap_or(DEFAULT_GDM),
+                    a.gl.unwrap_or(DEFAULT_GL),
+                )
+                .context("--gq/--gdm/--gl")?;
+                (kind, couplings)
+            }
+        };
+        let mode = match (scan, &a.curve, a.mmed, a.mdm) {
+            (Some(s), _, _, _) => Mode::Scan(Box::new(s)),
+            (None, Some(path), _, _) => {
+                let cl = a.cl.unwrap_or(DEFAULT_CL);
+                if !(cl > 0.0 && cl < 1.0) {
+                    anyhow::bail!("--cl must be in (0, 1), got {cl}");
                 }
                 if kind == MediatorKind::Pseudoscalar {
                     return Err(ModelError::MomentumSuppressed).context("--curve");
                 }
                 Mode::Curve {
                     path: path.clone(),
-                    cl: a.cl,
+                    cl,
                 }
             }
-            (None, Some(m_med), Some(m_dm)) => {
+            (None, None, Some(m_med), Some(m_dm)) => {
                 let mediator =
                     Mediator::new(kind, m_med, m_dm, couplings).context("--mmed/--mdm")?;
                 if let Some(mu) = a.mu_limit
@@ -136,7 +243,7 @@ impl TryFrom<&TranslateArgs> for Config {
                     mu_limit: a.mu_limit,
                 }
             }
-            _ => anyhow::bail!("give either --mmed and --mdm (point mode) or --curve FILE"),
+            _ => anyhow::bail!("give either --mmed and --mdm (point mode) or --curve FILE|DIR"),
         };
         let out = match &a.out {
             None => None,
@@ -169,6 +276,7 @@ pub fn run(args: TranslateArgs) -> anyhow::Result<()> {
     match &cfg.mode {
         Mode::Point { mediator, mu_limit } => run_point(&cfg, mediator, *mu_limit),
         Mode::Curve { path, cl } => run_curve(&cfg, path, *cl),
+        Mode::Scan(scan) => run_scan_curve(&cfg, scan),
     }
 }
 
@@ -489,6 +597,214 @@ fn curve_csv(curves: &[ColliderCurve]) -> anyhow::Result<Vec<u8>> {
                 c.kind.short().to_string(),
                 format!("{:e}", p.sigma_obs_cm2),
                 opt(p.sigma_exp_cm2),
+                c.cl.to_string(),
+            ])?;
+        }
+    }
+    Ok(w.into_inner()?)
+}
+
+/// One translated contour polyline in the JSON document of a scan folder.
+#[derive(Debug, serde::Serialize)]
+struct ScanCurveOut<'a> {
+    level: &'static str,
+    segment: usize,
+    nucleon: Nucleon,
+    scattering: ScatteringType,
+    params: &'static str,
+    cl: f64,
+    note: &'a str,
+    points: Vec<ScanCurvePoint>,
+}
+
+#[derive(Debug, serde::Serialize)]
+struct ScanCurvePoint {
+    m_dm_gev: f64,
+    m_med_limit_gev: f64,
+    sigma_cm2: f64,
+}
+
+/// JSON document of curve mode on a scan folder.
+#[derive(Debug, serde::Serialize)]
+struct ScanCurveReport<'a> {
+    program: String,
+    caution: &'static str,
+    input: String,
+    mediator: MediatorKind,
+    couplings: Couplings,
+    reference_couplings: recoil::scan::plan::PointCouplings,
+    cl: f64,
+    nucleon_params_source: &'static str,
+    notes: &'a [String],
+    curves: Vec<ScanCurveOut<'a>>,
+}
+
+fn run_scan_curve(cfg: &Config, scan: &ScanExclusion) -> anyhow::Result<()> {
+    let contours_path = scan.dir.join("contours.csv");
+    if scan.is_empty() {
+        let why = if scan.n_excluded == 0 {
+            format!(
+                "0 of the {} points in results.csv are excluded at {}% CL",
+                scan.n_points,
+                scan.cl * 100.0
+            )
+        } else {
+            format!(
+                "{} of the {} points in results.csv are excluded, but μ_up does not cross 1 \
+                 between grid points (see the warnings in {})",
+                scan.n_excluded,
+                scan.n_points,
+                scan.manifest.display()
+            )
+        };
+        anyhow::bail!(
+            "{}: no exclusion contour at any level ({why}), so there is no limit curve to \
+             translate into the DM–nucleon plane",
+            contours_path.display()
+        );
+    }
+    let mut notes = Vec::new();
+    let (c, r) = (&scan.couplings, &scan.reference);
+    if (c.g_q, c.g_dm) != (r.g_q, r.g_dm) {
+        notes.push(format!(
+            "the points were evaluated at g_q = {}, g_DM = {} (signal rescaled from the \
+             reference couplings g_q = {}, g_DM = {} the events were generated with); the \
+             curves are at the points' couplings",
+            c.g_q, c.g_dm, r.g_q, r.g_dm
+        ));
+    }
+    for contour in scan.contours.iter().filter(|c| c.segments.is_empty()) {
+        notes.push(format!(
+            "no {} contour in {}",
+            contour.level.name(),
+            contours_path.display()
+        ));
+    }
+    let curves = recoil::scan::translate_contours(
+        cfg.kind,
+        cfg.couplings,
+        &cfg.nucleons,
+        &cfg.params,
+        scan.cl,
+        &scan.contours,
+    )
+    .with_context(|| format!("translating the contours of {}", contours_path.display()))?;
+    print_scan_curves(scan, &curves, &notes);
+    if let Some((out, format)) = &cfg.out {
+        let bytes = match format {
+            Format::Csv => scan_curve_csv(&curves)?,
+            Format::Json => serde_json::to_vec_pretty(&ScanCurveReport {
+                program: format!("recoil {}", env!("CARGO_PKG_VERSION")),
+                caution: CAUTION,
+                input: scan.dir.display().to_string(),
+                mediator: cfg.kind,
+                couplings: cfg.couplings,
+                reference_couplings: scan.reference,
+                cl: scan.cl,
+                nucleon_params_source: cfg.params.source,
+                notes: &notes,
+                curves: curves
+                    .iter()
+                    .map(|t| ScanCurveOut {
+                        level: t.level.name(),
+                        segment: t.segment,
+                        nucleon: t.curve.nucleon,
+                        scattering: t.curve.kind,
+                        params: t.curve.params,
+                        cl: t.curve.cl,
+                        note: &t.curve.note,
+                        points: t
+                            .curve
+                            .points
+                            .iter()
+                            .map(|p| ScanCurvePoint {
+                                m_dm_gev: p.m_dm_gev,
+                                m_med_limit_gev: p.m_med_limit_obs_gev,
+                                sigma_cm2: p.sigma_obs_cm2,
+                            })
+                            .collect(),
+                    })
+                    .collect(),
+            })?,
+        };
+        super::output::write_atomically(out, &bytes)?;
+    }
+    Ok(())
+}
+
+fn print_scan_curves(scan: &ScanExclusion, curves: &[ContourCurve], notes: &[String]) {
+    println!(
+        "scan {}: {} mediator, limits at {}% CL (CLs); contours from contours.csv",
+        scan.dir.display(),
+        scan.mediator,
+        scan.cl * 100.0
+    );
+    for n in notes {
+        println!("note: {n}");
+    }
+    println!();
+    let mut nucleon = None;
+    for t in curves {
+        let c = &t.curve;
+        if nucleon != Some(c.nucleon) {
+            nucleon = Some(c.nucleon);
+            println!("{} ({}, nucleon set {})", c.note, c.nucleon, c.params);
+            println!();
+        }
+        if t.n_segments > 1 {
+            println!(
+                "{} contour, segment {} (segments 0 to {}, kept apart)",
+                t.level.name(),
+                t.segment,
+                t.n_segments - 1
+            );
+        } else {
+            println!("{} contour", t.level.name());
+        }
+        println!(
+            "{:>12} {:>16} {:>18}",
+            "m_DM [GeV]",
+            "M [GeV]",
+            format!("σ_{} [cm²]", c.kind.short())
+        );
+        for p in &c.points {
+            // Full precision in the output files.
+            println!(
+                "{:>12.2} {:>16.1} {:>18.3e}",
+                p.m_dm_gev, p.m_med_limit_obs_gev, p.sigma_obs_cm2
+            );
+        }
+        println!();
+    }
+    println!("note: {CAUTION}");
+}
+
+/// Columns of the CSV of curve mode on a scan folder.
+const SCAN_CURVE_COLUMNS: [&str; 8] = [
+    "level",
+    "segment",
+    "m_dm_gev",
+    "m_med_limit_gev",
+    "nucleon",
+    "scattering",
+    "sigma_cm2",
+    "cl",
+];
+
+fn scan_curve_csv(curves: &[ContourCurve]) -> anyhow::Result<Vec<u8>> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record(SCAN_CURVE_COLUMNS)?;
+    for t in curves {
+        let c = &t.curve;
+        for p in &c.points {
+            w.write_record([
+                t.level.name().to_string(),
+                t.segment.to_string(),
+                p.m_dm_gev.to_string(),
+                p.m_med_limit_obs_gev.to_string(),
+                c.nucleon.to_string(),
+                c.kind.short().to_string(),
+                format!("{:e}", p.sigma_obs_cm2),
                 c.cl.to_string(),
             ])?;
         }

@@ -131,6 +131,15 @@ impl CsvFile {
         Ok(v)
     }
 
+    /// A mass: a finite number > 0 (the figures' axes are logarithmic).
+    fn mass(&self, line: u64, rec: &csv::StringRecord, col: usize) -> Result<f64, PlotError> {
+        let v = self.finite(line, rec, col)?;
+        if v <= 0.0 {
+            return Err(self.bad(line, col, "must be a mass > 0 (GeV)", self.cell(rec, col)));
+        }
+        Ok(v)
+    }
+
     /// A number or an empty cell.
     fn opt_f64(
         &self,
@@ -211,7 +220,7 @@ pub fn uniform_couplings(rows: &[ScanResultRow]) -> Option<String> {
 
 /// Reads a scan's `contours.csv`: one [`ContourLine`] per (level, segment),
 /// in the order they first appear. A header with no rows gives no lines
-/// (nothing excluded).
+/// (nothing excluded). Masses must be finite and > 0.
 pub fn read_contours(path: &Path) -> Result<Vec<ContourLine>, PlotError> {
     let f = CsvFile::open(path)?;
     let c_level = f.col("level")?;
@@ -231,7 +240,7 @@ pub fn read_contours(path: &Path) -> Result<Vec<ContourLine>, PlotError> {
             )
         })?;
         let seg = f.uint(*line, rec, c_seg)?;
-        let p = (f.finite(*line, rec, c_m)?, f.finite(*line, rec, c_dm)?);
+        let p = (f.mass(*line, rec, c_m)?, f.mass(*line, rec, c_dm)?);
         let key = (level, seg);
         if !lines.contains_key(&key) {
             order.push(key);

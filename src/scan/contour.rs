@@ -206,6 +206,11 @@ impl ContourLevel {
         }
     }
 
+    /// The level named `name` in `contours.csv`.
+    pub fn from_name(name: &str) -> Option<Self> {
+        Self::ALL.into_iter().find(|l| l.name() == name)
+    }
+
     /// The point's upper limit on μ for this level.
     pub fn mu(self, r: &PointResult) -> f64 {
         match self {

@@ -16,6 +16,7 @@ pub mod atomic;
 pub mod cache;
 pub mod contour;
 pub mod evaluate;
+pub mod exclusion;
 pub mod output;
 pub mod plan;
 pub mod products;
@@ -24,6 +25,7 @@ pub mod shard;
 
 pub use cache::{CacheKey, CacheKeyBuilder, YieldCache};
 pub use contour::{Contour, ContourLevel, Grid, exclusion_contours, trace_level};
+pub use exclusion::{ContourCurve, ScanExclusion, translate_contours};
 pub use output::{PointResult, ScanManifest};
 pub use plan::{MediatorKind, ScanPlan, ScanPoint};
 pub use run::{
@@ -79,6 +81,10 @@ pub enum ScanError {
     /// The contour tracer was given an unusable grid.
     #[error("{0}")]
     Contour(String),
+    /// A table of a finished scan folder, read back with the figure stage's
+    /// readers, breaks a rule (the message names file, line and column).
+    #[error(transparent)]
+    Table(#[from] crate::plot::PlotError),
 }
 
 impl ScanError {

@@ -14,11 +14,12 @@ use std::path::Path;
 use super::ScanError;
 use super::atomic::write_atomic;
 use super::contour::{Contour, ContourLevel};
+use super::exclusion::translate_contours;
 use super::output::PointResult;
 use super::plan::{MediatorKind, ScanPlan};
 use super::run::ScanProducts;
 use crate::direct::{self, Experiment};
-use crate::model::{self, BoundaryPoint, Nucleon, NucleonParams};
+use crate::model::{self, Nucleon, NucleonParams};
 use crate::plot::{self, Curve, CurveSource, Interaction};
 use crate::search::Search;
 
@@ -116,7 +117,8 @@ impl PlanProducts {
     }
 
     /// The collider curves: each contour polyline translated point by point
-    /// into σ(m_χ) at the scan's couplings.
+    /// into σ(m_χ) at the scan's couplings ([`translate_contours`], which
+    /// `recoil translate` also uses on a finished folder).
     fn collider_curves(
         &self,
         rows: &[PointResult],
@@ -139,48 +141,39 @@ impl PlanProducts {
             .map_err(|e| ScanError::Contour(e.to_string()))?;
         let mut curves = Vec::new();
         for &(interaction, nucleon) in interactions(self.mediator) {
-            for contour in contours {
-                let name = match contour.level {
+            let translated = translate_contours(
+                self.mediator,
+                couplings,
+                &[nucleon],
+                &self.params,
+                self.cl,
+                contours,
+            )
+            .map_err(|e| ScanError::Contour(e.to_string()))?;
+            for t in translated {
+                let name = match t.level {
                     ContourLevel::Observed => "collider observed",
                     ContourLevel::Expected => "collider expected",
                     ContourLevel::ExpectedM1 => "collider expected −1σ",
                     ContourLevel::ExpectedP1 => "collider expected +1σ",
                 };
-                for (k, segment) in contour.segments.iter().enumerate() {
-                    let boundary: Vec<BoundaryPoint> = segment
+                let label = if t.n_segments > 1 {
+                    format!("{name} ({}) {}", t.segment + 1, interaction.as_str())
+                } else {
+                    format!("{name} {}", interaction.as_str())
+                };
+                curves.push(Curve {
+                    label,
+                    source: CurveSource::Collider,
+                    cl: self.cl,
+                    interaction,
+                    points: t
+                        .curve
+                        .points
                         .iter()
-                        .map(|&[m_med, m_dm]| BoundaryPoint {
-                            m_dm_gev: m_dm,
-                            m_med_limit_obs_gev: m_med,
-                            m_med_limit_exp_gev: None,
-                        })
-                        .collect();
-                    let curve = model::collider_curve(
-                        self.mediator,
-                        couplings,
-                        nucleon,
-                        &self.params,
-                        self.cl,
-                        &boundary,
-                    )
-                    .map_err(|e| ScanError::Contour(e.to_string()))?;
-                    let label = if contour.segments.len() > 1 {
-                        format!("{name} ({}) {}", k + 1, interaction.as_str())
-                    } else {
-                        format!("{name} {}", interaction.as_str())
-                    };
-                    curves.push(Curve {
-                        label,
-                        source: CurveSource::Collider,
-                        cl: self.cl,
-                        interaction,
-                        points: curve
-                            .points
-                            .iter()
-                            .map(|p| (p.m_dm_gev, p.sigma_obs_cm2))
-                            .collect(),
-                    });
-                }
+                        .map(|p| (p.m_dm_gev, p.sigma_obs_cm2))
+                        .collect(),
+                });
             }
         }
         Ok(curves)
