@@ -454,6 +454,35 @@ fn scan_folder_flags_must_agree_with_the_scan() {
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
 }
 
+// The nucleon parameter set recorded by the scan is used, and a
+// disagreeing --nucleon-set is refused (the rule for every flag above).
+#[test]
+fn scan_folder_nucleon_set_comes_from_the_scan() {
+    let dir = tempfile::tempdir().unwrap();
+    let scan = scan_folder(dir.path(), "vector", (0.25, 1.0), (0.25, 1.0), &CONTOURS);
+    let manifest = scan.join("result.json");
+    let text = std::fs::read_to_string(&manifest).unwrap();
+    std::fs::write(
+        &manifest,
+        text.replacen('{', r#"{"nucleon_params": "lattice2015", "#, 1),
+    )
+    .unwrap();
+    let s = scan.to_str().unwrap();
+    let o = recoil(&["--curve", s]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(text.contains("nucleon set lattice2015"), "{text}");
+    let o = recoil(&["--curve", s, "--nucleon-set", "dmwg2016"]);
+    assert_eq!(o.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("--nucleon-set dmwg2016 disagrees") && err.contains("result.json"),
+        "{err}"
+    );
+    let o = recoil(&["--curve", s, "--nucleon-set", "lattice2015"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+}
+
 #[test]
 fn scan_folder_bad_input_fails_cleanly() {
     let dir = tempfile::tempdir().unwrap();

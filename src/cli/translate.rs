@@ -69,9 +69,10 @@ pub struct TranslateArgs {
     /// Target nucleon: proton, neutron or both.
     #[arg(long, default_value = "both")]
     pub nucleon: String,
-    /// Nucleon parameter set: dmwg2016 (default) or lattice2015.
-    #[arg(long, default_value = "dmwg2016")]
-    pub nucleon_set: String,
+    /// Nucleon parameter set: dmwg2016 or lattice2015 [default: dmwg2016,
+    /// or a scan folder's own].
+    #[arg(long)]
+    pub nucleon_set: Option<String>,
     /// Write the results to FILE: .csv (a table) or .json (with provenance).
     #[arg(long)]
     pub out: Option<PathBuf>,
@@ -112,6 +113,8 @@ struct Config {
 
 /// Default couplings and confidence level when no scan supplies them.
 const DEFAULT_GQ: f64 = 0.25;
+/// Nucleon parameter set when neither the option nor a scan folder names one.
+const DEFAULT_NUCLEON_SET: &str = "dmwg2016";
 const DEFAULT_GDM: f64 = 1.0;
 const DEFAULT_GL: f64 = 0.0;
 const DEFAULT_CL: f64 = 0.95;
@@ -179,7 +182,6 @@ impl TryFrom<&TranslateArgs> for Config {
             "both" => Nucleon::BOTH.to_vec(),
             other => vec![other.parse::<Nucleon>().context("--nucleon")?],
         };
-        let params = NucleonParams::by_name(&a.nucleon_set).context("--nucleon-set")?;
         let scan = match &a.curve {
             Some(p) if ScanExclusion::is_scan_path(p) => Some(
                 ScanExclusion::read(p)
@@ -187,6 +189,21 @@ impl TryFrom<&TranslateArgs> for Config {
             ),
             _ => None,
         };
+        let scan_set = scan.as_ref().and_then(|s| s.nucleon_params.as_deref());
+        let set_name = match (a.nucleon_set.as_deref(), scan_set) {
+            (Some(given), Some(own)) if !given.trim().eq_ignore_ascii_case(own) => {
+                anyhow::bail!(
+                    "--nucleon-set {given} disagrees with the scan (nucleon_params = {own} in \
+                     {}); leave --nucleon-set out to use the scan's set",
+                    scan.as_ref()
+                        .map_or(String::new(), |s| s.manifest.display().to_string())
+                )
+            }
+            (Some(given), _) => given,
+            (None, Some(own)) => own,
+            (None, None) => DEFAULT_NUCLEON_SET,
+        };
+        let params = NucleonParams::by_name(set_name).context("--nucleon-set")?;
         let (kind, couplings) = match &scan {
             Some(s) => from_scan(a, s)?,
             None => {

@@ -98,6 +98,8 @@ struct ManifestModel {
     limit: ManifestLimit,
     #[serde(default)]
     shard: Option<ShardRecord>,
+    #[serde(default)]
+    nucleon_params: Option<String>,
 }
 
 #[derive(Debug, Deserialize)]
@@ -124,6 +126,9 @@ pub struct ScanExclusion {
     pub couplings: PointCouplings,
     /// Confidence level of the limits (`result.json`: `limit.cl`).
     pub cl: f64,
+    /// Nucleon parameter set the scan translated with (`result.json`:
+    /// `nucleon_params`; absent in folders written before it was recorded).
+    pub nucleon_params: Option<String>,
     /// Number of points in `results.csv`.
     pub n_points: usize,
     /// Number of those excluded (μ_up,obs < 1).
@@ -248,6 +253,7 @@ impl ScanExclusion {
             reference: m.reference_couplings,
             couplings,
             cl: m.limit.cl,
+            nucleon_params: m.nucleon_params.filter(|n| !n.is_empty()),
             n_points: rows.len(),
             n_excluded: rows.iter().filter(|r| r.point_masses.excluded).count(),
             contours,

@@ -270,6 +270,10 @@ pub struct ScanManifest {
     pub reference_couplings: PointCouplings,
     /// Limit options (confidence level, method, background constraint).
     pub limit: crate::stats::LimitOptions,
+    /// Nucleon parameter set of the DM–nucleon translation (model stage
+    /// name, e.g. `dmwg2016`).
+    #[serde(default)]
+    pub nucleon_params: String,
     /// How a point's limit is taken from the regions.
     pub regions: super::plan::RegionChoice,
     /// Whether the yield cache was used.
@@ -315,6 +319,7 @@ impl ScanManifest {
             mediator: plan.mediator,
             reference_couplings: plan.reference,
             limit: plan.limit,
+            nucleon_params: plan.dm_nucleon.nucleon_params.clone(),
             regions: plan.regions,
             cache_used,
             input_files,
