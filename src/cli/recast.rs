@@ -187,9 +187,12 @@ impl Config {
 /// Runs `recoil recast`.
 pub fn run(args: RecastArgs) -> anyhow::Result<()> {
     let cfg = Config::build(&args)?;
-    let pool = rayon::ThreadPoolBuilder::new()
+    // The global pool, so that this (reading) thread stays outside it and
+    // every worker parses: a pass started on a pool worker reads and
+    // parses on the same thread (see `EventSource::for_each_chunk`).
+    rayon::ThreadPoolBuilder::new()
         .num_threads(args.threads)
-        .build()
+        .build_global()
         .context("starting worker threads")?;
     let source = EventSource::open(
         &args.files,
@@ -223,7 +226,7 @@ pub fn run(args: RecastArgs) -> anyhow::Result<()> {
             bar.set_position(bytes);
         }
     };
-    let result = pool.install(|| run_sample(&cfg.search, source, &detector, Some(&progress)));
+    let result = run_sample(&cfg.search, source, &detector, Some(&progress));
     if let Some(bar) = &bar {
         bar.finish_and_clear();
     }

@@ -160,6 +160,15 @@ impl EventSource {
     /// in file and chunk order. `progress` is called with the number of
     /// bytes read so far (bytes on disk, so compressed bytes for gzip
     /// files). The first error in file order stops the pass.
+    ///
+    /// The calling thread reads and cuts the files; `map` runs in the rayon
+    /// pool of the calling thread (the global pool unless called inside
+    /// `ThreadPool::install`). Call it from a thread outside the pool to
+    /// have every worker parse: on a pool worker the pass still works (the
+    /// worker runs chunks while it waits, so passes nested in parallel
+    /// work cannot deadlock), but that worker mostly runs the chunks it has
+    /// just cut, one after the other, and a single pass then uses little
+    /// more than one core.
     pub fn for_each_chunk<T, M, C>(
         self,
         map: M,
