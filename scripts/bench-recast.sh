@@ -4,7 +4,8 @@
 #
 # usage: scripts/bench-recast.sh [FILE.lhe] [N_EVENTS] [REPEATS]
 #   FILE.lhe   an existing LHEF file; generated (synthetic, timing only) when
-#              absent, with N_EVENTS events (default 200000)
+#              absent (examples/make-bench-events: LHEF 3.0, nine named
+#              weights), with N_EVENTS events (default 200000)
 #   REPEATS    timed runs of each command (default 3); the best time counts
 # Environment: DETECTOR (profile TOML, default recasts/detectors/generic-13tev.toml),
 #              THREADS (default 0 = all cores), CARGO_TARGET_DIR.
@@ -14,18 +15,17 @@ cd "$(dirname "$0")/.."
 n_events="${2:-200000}"
 repeats="${3:-3}"
 file="${1:-}"
+cargo build --release --quiet --bin recoil --example make-bench-events
+bin="${CARGO_TARGET_DIR:-target}/release/recoil"
 if [[ -z "$file" ]]; then
     file="${TMPDIR:-/tmp}/recoil-bench-${n_events}.lhe"
     if [[ ! -s "$file" ]]; then
         echo "generating $n_events synthetic events in $file" >&2
-        python3 scripts/gen-lhef.py "$file" "$n_events"
+        "${CARGO_TARGET_DIR:-target}/release/examples/make-bench-events" "$file" "$n_events"
     fi
 fi
 detector="${DETECTOR:-recasts/detectors/generic-13tev.toml}"
 threads="${THREADS:-0}"
-
-cargo build --release --quiet
-bin="${CARGO_TARGET_DIR:-target}/release/recoil"
 
 # Warm the page cache so both commands read from memory.
 cat "$file" > /dev/null
