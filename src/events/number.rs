@@ -255,6 +255,15 @@ impl<'a> Cursor<'a> {
     /// spaces.
     #[inline(always)]
     fn skip_blanks(&mut self) {
+        // Most fields follow one space: settle that without the wide test.
+        match self.s.get(self.i..self.i + 2) {
+            Some([b' ', c]) if !matches!(c, b' ' | b'\t' | b'\r') => {
+                self.i += 1;
+                return;
+            }
+            Some([c, _]) if !matches!(c, b' ' | b'\t' | b'\r') => return,
+            _ => {}
+        }
         loop {
             if let Some(w) = self.s.get(self.i..self.i + 8) {
                 // invariant: the slice has exactly 8 bytes
