@@ -24,6 +24,7 @@ pub mod direct;
 pub mod events;
 pub mod kinematics;
 pub mod model;
+pub mod output;
 pub mod plot;
 pub mod scan;
 pub mod search;

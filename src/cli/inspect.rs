@@ -2,7 +2,7 @@
 
 use anyhow::Context;
 use recoil::events::{FileCombination, Inspection, InvisibleSet, ReadOptions, inspect_sample};
-use std::io::{IsTerminal, Write};
+use std::io::Write;
 use std::path::PathBuf;
 
 /// How several files are combined (see the weight convention in the README).
@@ -66,21 +66,7 @@ impl InspectArgs {
 /// Runs `recoil inspect`.
 pub fn run(args: InspectArgs) -> anyhow::Result<()> {
     let opts = args.read_options();
-    let total_bytes: u64 = args
-        .files
-        .iter()
-        .map(|f| std::fs::metadata(f).map(|m| m.len()).unwrap_or(0))
-        .sum();
-    let bar = std::io::stderr().is_terminal().then(|| {
-        let b = indicatif::ProgressBar::new(total_bytes);
-        b.set_style(
-            indicatif::ProgressStyle::with_template(
-                "{bar:40} {bytes}/{total_bytes} {bytes_per_sec} eta {eta}",
-            )
-            .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
-        );
-        b
-    });
+    let bar = super::progress::bytes_bar(&args.files, "reading events");
     let progress = |n: u64| {
         if let Some(b) = &bar {
             b.set_position(n);

@@ -9,6 +9,7 @@ mod limit;
 mod merge;
 mod output;
 mod plot;
+mod progress;
 mod recast;
 mod scan;
 mod translate;

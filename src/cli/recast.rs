@@ -1,7 +1,7 @@
 //! `recoil recast --search S [--detector D] FILES…`: yields, cut-flows,
 //! CLs and limits of one search for one model point (one event sample).
 
-use std::io::{IsTerminal, Read, Write};
+use std::io::{Read, Write};
 use std::path::{Path, PathBuf};
 
 use anyhow::{Context, bail};
@@ -205,22 +205,7 @@ pub fn run(args: RecastArgs) -> anyhow::Result<()> {
     let weight_names = source.info().weight_names.clone();
     let detector = Detector::new(cfg.profile.clone(), cfg.invisible.clone(), args.seed);
 
-    let total_bytes: u64 = args
-        .files
-        .iter()
-        .filter_map(|f| std::fs::metadata(f).ok())
-        .map(|m| m.len())
-        .sum();
-    let bar = std::io::stderr().is_terminal().then(|| {
-        let bar = indicatif::ProgressBar::new(total_bytes);
-        bar.set_style(
-            indicatif::ProgressStyle::with_template(
-                "{spinner} reading events {bar:40} {bytes}/{total_bytes} ({eta})",
-            )
-            .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
-        );
-        bar
-    });
+    let bar = super::progress::bytes_bar(&args.files, "reading events");
     let progress = |bytes: u64| {
         if let Some(bar) = &bar {
             bar.set_position(bytes);

@@ -2,7 +2,6 @@
 //! selection, yields and statistics, in parallel, with a cache, resume and
 //! shards; writes the results table, the contours and the DM–nucleon curves.
 
-use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
@@ -72,7 +71,7 @@ pub fn run(args: ScanArgs) -> anyhow::Result<()> {
         .iter()
         .filter(|p| shard.contains(p.index))
         .count();
-    let bar = progress_bar(n_points as u64, "points");
+    let bar = super::progress::count_bar(n_points as u64, "points");
     let on_progress = |p: Progress| {
         if let Some(b) = &bar {
             b.set_position(p.done as u64);
@@ -106,19 +105,6 @@ pub fn run(args: ScanArgs) -> anyhow::Result<()> {
     print_warnings(&summary.warnings);
     print_outputs(&out);
     Ok(())
-}
-
-/// A progress bar on stderr counting `unit`, only when stderr is a terminal.
-pub(super) fn progress_bar(len: u64, unit: &str) -> Option<indicatif::ProgressBar> {
-    if !std::io::stderr().is_terminal() {
-        return None;
-    }
-    let bar = indicatif::ProgressBar::new(len);
-    let template = format!("{{bar:40}} {{pos}}/{{len}} {unit}, ETA {{eta}} ({{msg}})");
-    if let Ok(style) = indicatif::ProgressStyle::with_template(&template) {
-        bar.set_style(style);
-    }
-    Some(bar)
 }
 
 /// Prints the results table with units in the headers.

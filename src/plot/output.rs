@@ -2,7 +2,6 @@
 //! written atomically (a temporary file in the same folder, then a rename) so
 //! no partial figure is ever left behind.
 
-use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use super::PlotError;
@@ -76,31 +75,12 @@ pub(crate) fn paths_for(svg: &Path) -> Result<FigureFiles, PlotError> {
     })
 }
 
-/// Writes `contents` to `path` through a temporary file in the same folder.
+/// Writes `contents` to `path` atomically ([`crate::output::write_atomic`]).
 pub(crate) fn write_atomic(path: &Path, contents: &[u8]) -> Result<(), PlotError> {
-    let err = |cause| PlotError::Write {
+    crate::output::write_atomic(path, contents).map_err(|cause| PlotError::Write {
         path: path.to_path_buf(),
         cause,
-    };
-    let dir = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "figure".to_string());
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
-    let result = (|| {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(contents)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result.map_err(err)
+    })
 }
 
 /// Writes the SVG and the CSV of one figure.
