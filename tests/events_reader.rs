@@ -399,6 +399,37 @@ fn identical_on_one_and_many_threads() {
         next += *n as u64;
     }
     assert_eq!(next, 9_000);
+    // Passes nested in parallel work (as the scan runs several points at
+    // once): more passes than workers, each called on a pool worker, must
+    // all finish with the same chunks (no deadlock, no mixing).
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(2)
+        .build()
+        .expect("pool");
+    let nested: Vec<_> = pool.install(|| {
+        use rayon::prelude::*;
+        (0..5)
+            .into_par_iter()
+            .map(|_| {
+                let src = EventSource::open(std::slice::from_ref(&p), ReadOptions::default())
+                    .expect("open");
+                let mut partial = Vec::new();
+                src.for_each_chunk(
+                    |ctx, evs| {
+                        let sum: f64 = evs.iter().map(|e| e.weight * e.particles[2].p4.pt()).sum();
+                        (ctx.first_event_index, evs.len(), sum.to_bits())
+                    },
+                    |x| partial.push(x),
+                    None,
+                )
+                .expect("read");
+                partial
+            })
+            .collect()
+    });
+    for partial in nested {
+        assert_eq!(partial, p1);
+    }
 }
 
 // gzip detected by magic bytes (RFC 1952), whatever the name, including a

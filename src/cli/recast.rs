@@ -187,9 +187,8 @@ impl Config {
 /// Runs `recoil recast`.
 pub fn run(args: RecastArgs) -> anyhow::Result<()> {
     let cfg = Config::build(&args)?;
-    // The global pool, so that this (reading) thread stays outside it and
-    // every worker parses: a pass started on a pool worker reads and
-    // parses on the same thread (see `EventSource::for_each_chunk`).
+    // One pool for the whole command: the workers parse and reconstruct,
+    // the event reader has a thread of its own.
     rayon::ThreadPoolBuilder::new()
         .num_threads(args.threads)
         .build_global()

@@ -4,14 +4,16 @@
 //! Fed by file paths and [`super::ReadOptions`]; feeds the later stages
 //! through [`EventSource::for_each_chunk`].
 //!
-//! How the pass works: the calling thread reads each file (gzip files are
-//! decompressed on a thread of their own) in blocks of [`BLOCK_BYTES`],
+//! How the pass works: a reading thread of its own, outside the rayon pool,
+//! reads each file (gzip files are decompressed on a further thread) in
+//! blocks of [`BLOCK_BYTES`],
 //! cuts each block just before the line of its last `<event>` tag (a
 //! position that depends only on the file content, never on the number of
 //! threads), counts the events and lines of the chunk, and hands the chunk
 //! to the rayon pool, where it is parsed and mapped. Results come back out
-//! of order and are consumed strictly in order; at most a fixed window of
-//! chunks is in flight, so memory does not grow with the file size.
+//! of order and are consumed strictly in order on the calling thread; at
+//! most a fixed window of chunks is in flight, so memory does not grow with
+//! the file size.
 
 use super::error::EventError;
 use super::gzip::{Input, fill, fill_into, open_input};
@@ -161,14 +163,12 @@ impl EventSource {
     /// bytes read so far (bytes on disk, so compressed bytes for gzip
     /// files). The first error in file order stops the pass.
     ///
-    /// The calling thread reads and cuts the files; `map` runs in the rayon
-    /// pool of the calling thread (the global pool unless called inside
-    /// `ThreadPool::install`). Call it from a thread outside the pool to
-    /// have every worker parse: on a pool worker the pass still works (the
-    /// worker runs chunks while it waits, so passes nested in parallel
-    /// work cannot deadlock), but that worker mostly runs the chunks it has
-    /// just cut, one after the other, and a single pass then uses little
-    /// more than one core.
+    /// A reading thread of its own reads and cuts the files, `map` runs in
+    /// the rayon pool of the calling thread (the global pool unless called
+    /// inside `ThreadPool::install`), and `consume` runs on the calling
+    /// thread. Called from a pool worker, that worker parses chunks while it
+    /// waits, so passes nested in parallel work cannot deadlock and every
+    /// worker parses.
     pub fn for_each_chunk<T, M, C>(
         self,
         map: M,
@@ -185,20 +185,23 @@ impl EventSource {
         // Sequence number of the earliest failed chunk; later chunks are skipped.
         let first_failure = AtomicUsize::new(usize::MAX);
         let mut sums: Vec<Vec<ProcessSums>> = vec![Vec::new(); info.files.len()];
-        let mut done_bytes: u64 = 0;
 
         // A failed chunk reports its file and the fault with a line number
         // counted from the chunk's first line; the consumer, which knows
         // the lines of all earlier chunks, makes it a file line number.
         type Out<T> = Result<(T, ParsedChunkMeta), (usize, BodyFault)>;
         let mut line_base: Vec<u64> = info.files.iter().map(|f| f.body_line).collect();
+        let mut done_bytes: u64 = 0;
         let result: Result<(), EventError> = rayon::in_place_scope(|scope| {
             let (tx, rx) = mpsc::channel::<(usize, Out<T>)>();
             let (recycled_tx, recycled_rx) = mpsc::channel::<Vec<u8>>();
             // Parsed events of finished chunks, refilled by later chunks.
             let (spare_tx, spare_rx) = mpsc::channel::<Vec<Event>>();
+            // One message per consumed chunk: the reader waits on it while
+            // `window` chunks are in flight; closed when the consumer stops.
+            let (slot_tx, slot_rx) = mpsc::channel::<()>();
+            let consumed_shared = AtomicUsize::new(0);
             let mut pending: BTreeMap<usize, Out<T>> = BTreeMap::new();
-            let mut issued = 0usize;
             let mut consumed = 0usize;
             // The file-order state of the consumer: did the previous chunk
             // of this file end with </LesHouchesEvents>?
@@ -252,22 +255,30 @@ impl EventSource {
                 Ok(())
             };
 
-            // Err(Ok(e)): reading failed (earlier chunks still count);
-            // Err(Err(e)): a chunk failed in order (nothing more is consumed).
-            let mut run = || -> Result<(), Result<EventError, EventError>> {
+            // The reading loop, on a thread of its own outside the pool, so
+            // that every worker (the calling thread too, when it is one)
+            // parses: chunks spawned from outside the pool go to its shared
+            // queue. Returns the bytes read, or the reading error (chunks
+            // issued before it still count).
+            let consumed_shared = &consumed_shared;
+            let first_failure = &first_failure;
+            let map = &map;
+            let run = move || -> Result<u64, EventError> {
+                let mut issued = 0usize;
+                let mut done_bytes: u64 = 0;
                 for (file_index, file) in info.files.iter().enumerate() {
                     let path = &file.path;
-                    let mut input = open_input(path).map_err(|e| Ok(io_err(path, None, 0, e)))?;
+                    let mut input = open_input(path).map_err(|e| io_err(path, None, 0, e))?;
                     // Skip the header.
                     let mut skip = Vec::new();
                     let offset = usize::try_from(file.body_offset).unwrap_or(usize::MAX);
                     fill(&mut input.reader, &mut skip, offset)
-                        .map_err(|e| Ok(io_err(path, Some(&input), 0, e)))?;
+                        .map_err(|e| io_err(path, Some(&input), 0, e))?;
                     if skip.len() != offset {
-                        return Err(Ok(EventError::Sample {
+                        return Err(EventError::Sample {
                             path: path.clone(),
                             rule: "the file changed since it was opened (header shorter)".into(),
-                        }));
+                        });
                     }
                     drop(skip);
                     let mut text_offset = file.body_offset;
@@ -289,7 +300,7 @@ impl EventSource {
                         let cut = loop {
                             eof = fill_into(&mut input.reader, &mut buf, &mut filled, want)
                                 .map_err(|e| {
-                                    Ok(io_err(path, Some(&input), text_offset + filled as u64, e))
+                                    io_err(path, Some(&input), text_offset + filled as u64, e)
                                 })?;
                             if eof {
                                 break filled;
@@ -297,13 +308,13 @@ impl EventSource {
                             match last_event_start(&buf[..filled]) {
                                 Some(c) if c > 0 => break c,
                                 _ if filled >= MAX_EVENT_BYTES => {
-                                    return Err(Ok(EventError::Sample {
+                                    return Err(EventError::Sample {
                                         path: path.clone(),
                                         rule: format!(
                                             "no <event> tag starts a line within {} MiB after byte {text_offset} of the text",
                                             MAX_EVENT_BYTES >> 20
                                         ),
-                                    }));
+                                    });
                                 }
                                 _ => want = filled * 2,
                             }
@@ -327,8 +338,6 @@ impl EventSource {
                         let tx = tx.clone();
                         let recycled_tx = recycled_tx.clone();
                         let spare_tx = spare_tx.clone();
-                        let map = &map;
-                        let first_failure = &first_failure;
                         scope.spawn(move |_| {
                             if seq > first_failure.load(Ordering::Relaxed) {
                                 let skipped = BodyFault {
@@ -360,12 +369,12 @@ impl EventSource {
                             }
                             let _ = tx.send((seq, out));
                         });
-                        while issued - consumed >= window {
-                            let (seq, out) = receive(&rx).ok_or_else(|| {
-                                Ok(EventError::Format("internal: worker channel closed".into()))
-                            })?;
-                            pending.insert(seq, out);
-                            drain(&mut pending, &mut consumed, &mut sums).map_err(Err)?;
+                        // At most `window` chunks in flight; a closed slot
+                        // channel means the consumer has stopped.
+                        while issued - consumed_shared.load(Ordering::Acquire) >= window {
+                            if slot_rx.recv().is_err() {
+                                return Ok(done_bytes);
+                            }
                         }
                         if let Some(p) = progress {
                             p(done_bytes + input.disk_bytes.load(Ordering::Relaxed));
@@ -373,25 +382,39 @@ impl EventSource {
                     }
                     done_bytes += input.disk_bytes.load(Ordering::Relaxed);
                 }
-                Ok(())
+                Ok(done_bytes)
             };
-            let read_result = match run() {
-                Ok(()) => Ok(()),
-                Err(Err(chunk_error)) => return Err(chunk_error),
-                Err(Ok(read_error)) => Err(read_error),
-            };
-            // Wait for every issued chunk, consuming in order; the first
-            // error in file order wins over a later read error.
-            while consumed < issued {
-                match receive(&rx) {
-                    Some((seq, out)) => {
-                        pending.insert(seq, out);
-                        drain(&mut pending, &mut consumed, &mut sums)?;
+            std::thread::scope(|threads| -> Result<(), EventError> {
+                let reader = std::thread::Builder::new()
+                    .name("recoil-reader".into())
+                    .spawn_scoped(threads, run)
+                    .map_err(|e| {
+                        EventError::Format(format!("cannot start the reading thread: {e}"))
+                    })?;
+                // Consume in order until every sender (the reader and the
+                // chunks it spawned) is gone; stop at the first error in
+                // file order, which wins over a later reading error.
+                while let Some((seq, out)) = receive(&rx) {
+                    pending.insert(seq, out);
+                    let before = consumed;
+                    drain(&mut pending, &mut consumed, &mut sums)?;
+                    consumed_shared.store(consumed, Ordering::Release);
+                    for _ in before..consumed {
+                        let _ = slot_tx.send(());
                     }
-                    None => break,
                 }
-            }
-            read_result
+                drop(slot_tx);
+                match reader.join() {
+                    Ok(Ok(bytes)) => {
+                        done_bytes = bytes;
+                        Ok(())
+                    }
+                    Ok(Err(read_error)) => Err(read_error),
+                    Err(_) => Err(EventError::Format(
+                        "internal: the reading thread failed".into(),
+                    )),
+                }
+            })
         });
         result?;
         if let Some(p) = progress {
