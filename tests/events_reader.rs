@@ -364,27 +364,30 @@ fn identical_on_one_and_many_threads() {
         ..Default::default()
     };
     let p = write(dir.path(), "a.lhe", lhef_string(&spec).as_bytes());
+    // One pass: its summary and, per chunk, (first event, events, bits of
+    // a weighted sum).
+    let pass = || {
+        let src =
+            EventSource::open(std::slice::from_ref(&p), ReadOptions::default()).expect("open");
+        let mut partial = Vec::new();
+        let s = src
+            .for_each_chunk(
+                |ctx, evs| {
+                    let sum: f64 = evs.iter().map(|e| e.weight * e.particles[2].p4.pt()).sum();
+                    (ctx.first_event_index, evs.len(), sum.to_bits())
+                },
+                |x| partial.push(x),
+                None,
+            )
+            .expect("read");
+        (s, partial)
+    };
     let run = |threads: usize| {
         let pool = rayon::ThreadPoolBuilder::new()
             .num_threads(threads)
             .build()
             .expect("pool");
-        pool.install(|| {
-            let src =
-                EventSource::open(std::slice::from_ref(&p), ReadOptions::default()).expect("open");
-            let mut partial = Vec::new();
-            let s = src
-                .for_each_chunk(
-                    |ctx, evs| {
-                        let sum: f64 = evs.iter().map(|e| e.weight * e.particles[2].p4.pt()).sum();
-                        (ctx.first_event_index, evs.len(), sum.to_bits())
-                    },
-                    |x| partial.push(x),
-                    None,
-                )
-                .expect("read");
-            (s, partial)
-        })
+        pool.install(pass)
     };
     let (s1, p1) = run(1);
     let (s2, p2) = run(2);
@@ -408,24 +411,7 @@ fn identical_on_one_and_many_threads() {
         .expect("pool");
     let nested: Vec<_> = pool.install(|| {
         use rayon::prelude::*;
-        (0..5)
-            .into_par_iter()
-            .map(|_| {
-                let src = EventSource::open(std::slice::from_ref(&p), ReadOptions::default())
-                    .expect("open");
-                let mut partial = Vec::new();
-                src.for_each_chunk(
-                    |ctx, evs| {
-                        let sum: f64 = evs.iter().map(|e| e.weight * e.particles[2].p4.pt()).sum();
-                        (ctx.first_event_index, evs.len(), sum.to_bits())
-                    },
-                    |x| partial.push(x),
-                    None,
-                )
-                .expect("read");
-                partial
-            })
-            .collect()
+        (0..5).into_par_iter().map(|_| pass().1).collect()
     });
     for partial in nested {
         assert_eq!(partial, p1);
