@@ -227,8 +227,11 @@ pub fn run(args: RecastArgs) -> anyhow::Result<()> {
     if let Some(x) = args.xsec_pb {
         yields = yields.with_cross_section_pb(x)?;
     }
-    let limits = search_limits(&cfg.search, &yields, &cfg.limit)?;
-    let independent = model_independent_limits(&cfg.search, &cfg.limit)?;
+    let (limits, independent) = rayon::join(
+        || search_limits(&cfg.search, &yields, &cfg.limit),
+        || model_independent_limits(&cfg.search, &cfg.limit),
+    );
+    let (limits, independent) = (limits?, independent?);
 
     let mut out = std::io::stdout().lock();
     print_report(&mut out, &cfg, &yields, &limits, &independent)?;

@@ -5,6 +5,7 @@
 //!
 //! Fed by [`super::yields`]; computed with [`crate::stats`].
 
+use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use crate::stats::{Limit, LimitOptions, RegionCounts, combined_limit, region_limit};
@@ -110,38 +111,46 @@ pub fn search_limits(
     opts: &LimitOptions,
 ) -> Result<SearchLimits, SearchError> {
     let counts = search.region_counts(yields)?;
-    let regions = search
-        .regions()
-        .iter()
-        .zip(&counts)
-        .map(|(r, c)| {
-            region_limit(c, opts)
-                .map(|limit| RegionLimit {
-                    region: r.name().to_string(),
-                    counts: *c,
-                    limit,
+    // The regions and the combination are independent: computed in
+    // parallel, each by itself, so the results do not depend on the number
+    // of threads; the first failing region in definition order is reported.
+    let (regions, combined) = rayon::join(
+        || {
+            search
+                .regions()
+                .par_iter()
+                .zip(&counts)
+                .map(|(r, c)| {
+                    region_limit(c, opts)
+                        .map(|limit| RegionLimit {
+                            region: r.name().to_string(),
+                            counts: *c,
+                            limit,
+                        })
+                        .map_err(|source| SearchError::Stats {
+                            region: r.name().to_string(),
+                            source,
+                        })
                 })
+                .collect::<Vec<_>>()
+        },
+        || {
+            let exclusive = search.exclusive_indices();
+            if exclusive.is_empty() {
+                return Ok(None);
+            }
+            let sub: Vec<RegionCounts> = exclusive.iter().map(|&i| counts[i]).collect();
+            combined_limit(&sub, search.background_covariance(), opts)
+                .map(Some)
                 .map_err(|source| SearchError::Stats {
-                    region: r.name().to_string(),
-                    source,
-                })
-        })
-        .collect::<Result<Vec<_>, _>>()?;
-    let best_region = argmin_finite(regions.iter().map(|r| r.limit.mu_up_expected[2]));
-    let exclusive = search.exclusive_indices();
-    let combined = if exclusive.is_empty() {
-        None
-    } else {
-        let sub: Vec<RegionCounts> = exclusive.iter().map(|&i| counts[i]).collect();
-        Some(
-            combined_limit(&sub, search.background_covariance(), opts).map_err(|source| {
-                SearchError::Stats {
                     region: "combined exclusive regions".into(),
                     source,
-                }
-            })?,
-        )
-    };
+                })
+        },
+    );
+    let regions = regions.into_iter().collect::<Result<Vec<_>, _>>()?;
+    let combined = combined?;
+    let best_region = argmin_finite(regions.iter().map(|r| r.limit.mu_up_expected[2]));
     Ok(SearchLimits {
         options: *opts,
         regions,
@@ -182,9 +191,11 @@ pub fn model_independent_limits(
     opts: &LimitOptions,
 ) -> Result<Vec<ModelIndependentLimit>, SearchError> {
     let lumi = search.lumi_ifb();
-    search
+    // Independent per region: in parallel; the first failure in definition
+    // order is reported.
+    let limits: Vec<Result<ModelIndependentLimit, SearchError>> = search
         .regions()
-        .iter()
+        .par_iter()
         .map(|r| {
             let unit = RegionCounts {
                 observed: r.observed(),
@@ -204,7 +215,8 @@ pub fn model_independent_limits(
                 sigma_vis_exp_fb: l.mu_up_expected[2] / lumi,
             })
         })
-        .collect()
+        .collect();
+    limits.into_iter().collect()
 }
 
 #[cfg(test)]
