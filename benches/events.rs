@@ -5,7 +5,10 @@
 //! every event reconstructed by the generic 13 TeV detector profile
 //! (`recasts/detectors/generic-13tev.toml`) against the read-only pass.
 //!
-//! `cargo bench --bench events` (or `-- pipeline` for the second group)
+//! `cargo bench --bench events` (or `-- pipeline` for the second group).
+//! `parse_1_thread` has one parsing worker; the reader's own thread comes
+//! on top, so for the figure of one core run
+//! `taskset -c 0 cargo bench --bench events -- events/parse_1_thread`.
 
 #[path = "../tests/events_support/mod.rs"]
 mod events_support;
