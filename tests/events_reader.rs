@@ -266,7 +266,7 @@ fn differential_against_lhef_crate_writer_notation() {
 }
 
 // Reference: the same events in the usual `<wgt id='…'> v </wgt>` layout
-// (read by the `lhef` crate above). LHEF 3.0 (arXiv:1405.1067, Sec. 3.2)
+// (read by the `lhef` crate above). LHEF 3.0 (arXiv:1405.1067, Sec. 23, from memory)
 // fixes the tag, not the spacing, the quote character, the order of the
 // `<wgt>` lines or extra attributes; every such layout must give the same
 // weights, bit for bit, as the usual one.
