@@ -112,6 +112,16 @@ const POW10_U64: [u64; 9] = [
     100_000_000,
 ];
 
+/// Index (0–8) of the lowest non-zero byte of `x` (8 when all are zero):
+/// the high bit of each non-zero byte is set exactly, without carries
+/// between bytes (common practice, the "has a non-zero byte" bit trick).
+#[inline(always)]
+fn first_nonzero_byte(x: u64) -> usize {
+    let t = ((x & 0x7F7F_7F7F_7F7F_7F7F).wrapping_add(0x7F7F_7F7F_7F7F_7F7F) | x)
+        & 0x8080_8080_8080_8080;
+    (t.trailing_zeros() / 8) as usize
+}
+
 /// Number of leading ASCII digits (0–8) among the 8 bytes of `x`
 /// (little-endian, first byte lowest). Exact up to the first non-digit:
 /// a carry out of a non-digit byte only disturbs the bytes after it.
@@ -119,10 +129,7 @@ const POW10_U64: [u64; 9] = [
 fn leading_digits(x: u64) -> usize {
     let not_digit = ((x & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030)
         | ((x.wrapping_add(0x0606_0606_0606_0606) & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030);
-    // High bit of each non-zero byte (exact per byte, common practice).
-    let t = ((not_digit & 0x7F7F_7F7F_7F7F_7F7F).wrapping_add(0x7F7F_7F7F_7F7F_7F7F) | not_digit)
-        & 0x8080_8080_8080_8080;
-    (t.trailing_zeros() / 8) as usize
+    first_nonzero_byte(not_digit)
 }
 
 /// Reads a run of decimal digits at `s[*i..]` into `mant` (as more
@@ -170,11 +177,15 @@ fn digit_run(s: &[u8], i: &mut usize, mant: &mut u64, n_before: usize) -> Option
 
 /// The fast path on a prefix of `s`: the value and the number of bytes
 /// used, or `None` when the prefix is not in the fast-path form.
-#[inline(never)]
+#[inline(always)]
 fn fast_f64(s: &[u8]) -> Option<(f64, usize)> {
-    if let Some(r) = fixed_layout(s) {
-        return Some(r);
-    }
+    fixed_layout(s).or_else(|| general_f64(s))
+}
+
+/// The fast path for any `[±]digits[.digits][(e|E)[±]digits]` prefix (the
+/// fixed layout is tried first by [`fast_f64`]).
+#[inline(never)]
+fn general_f64(s: &[u8]) -> Option<(f64, usize)> {
     let n = s.len();
     let neg = s.first() == Some(&b'-');
     let mut i = usize::from(neg || s.first() == Some(&b'+'));
@@ -241,7 +252,7 @@ pub struct Cursor<'a> {
 /// True for a byte that ends a field: a blank or the newline.
 #[inline(always)]
 fn ends_a_field(c: u8) -> bool {
-    c == b' ' || c == b'\n' || c == b'\t' || c == b'\r'
+    is_blank(c) || c == b'\n'
 }
 
 impl<'a> Cursor<'a> {
@@ -257,29 +268,25 @@ impl<'a> Cursor<'a> {
     fn skip_blanks(&mut self) {
         // Most fields follow one space: settle that without the wide test.
         match self.s.get(self.i..self.i + 2) {
-            Some([b' ', c]) if !matches!(c, b' ' | b'\t' | b'\r') => {
+            Some(&[b' ', c]) if !is_blank(c) => {
                 self.i += 1;
                 return;
             }
-            Some([c, _]) if !matches!(c, b' ' | b'\t' | b'\r') => return,
+            Some(&[c, _]) if !is_blank(c) => return,
             _ => {}
         }
         loop {
             if let Some(w) = self.s.get(self.i..self.i + 8) {
                 // invariant: the slice has exactly 8 bytes
                 let y = u64::from_le_bytes(w.try_into().unwrap()) ^ 0x2020_2020_2020_2020;
+                // The spaces are the zero bytes of `y`.
+                self.i += first_nonzero_byte(y);
                 if y == 0 {
-                    self.i += 8;
                     continue;
                 }
-                // Lowest byte that is not a space (exact per-byte test,
-                // common practice): its high bit is set in `t`.
-                let t = ((y & 0x7F7F_7F7F_7F7F_7F7F).wrapping_add(0x7F7F_7F7F_7F7F_7F7F) | y)
-                    & 0x8080_8080_8080_8080;
-                self.i += (t.trailing_zeros() / 8) as usize;
             }
             match self.s.get(self.i) {
-                Some(b' ' | b'\t' | b'\r') => self.i += 1,
+                Some(&c) if is_blank(c) => self.i += 1,
                 _ => return,
             }
         }
@@ -306,11 +313,7 @@ impl<'a> Cursor<'a> {
     #[inline(always)]
     fn number(&mut self, tag_may_follow: bool) -> Option<f64> {
         self.skip_blanks();
-        let r = self.s.get(self.i..)?;
-        let (v, used) = match fixed_layout(r) {
-            Some(x) => x,
-            None => fast_f64(r)?,
-        };
+        let (v, used) = fast_f64(self.s.get(self.i..)?)?;
         let end = self.i + used;
         if !(self.ends_field(end) || (tag_may_follow && self.s.get(end) == Some(&b'<'))) {
             return None;
@@ -422,7 +425,8 @@ pub struct Fields<'a> {
     rest: &'a [u8],
 }
 
-#[inline]
+/// True for a field separator within a line: space, tab, CR.
+#[inline(always)]
 fn is_blank(c: u8) -> bool {
     c == b' ' || c == b'\t' || c == b'\r'
 }
