@@ -369,9 +369,8 @@ fn parse_event(
 
     // Optional information up to </event>.
     let n_names = file.weight_names.len();
-    // Named `<wgt>` values go straight into `ev.weights` (NaN marks a
-    // weight not yet seen: `real` accepts finite values only).
-    let mut named = false;
+    // Named `<wgt>` values go straight into `ev.weights` (see
+    // `store_named`); it stays empty for an event without them.
     let mut positional: Vec<f64> = Vec::new();
     let mut in_weights = false;
     let mut saw_weights = false;
@@ -385,12 +384,7 @@ fn parse_event(
         {
             lines.step_over(len);
             saw_weights = true;
-            if !named {
-                named = true;
-                ev.weights.resize(n_names, f64::NAN);
-            }
-            // invariant: n_named < n_names == ev.weights.len()
-            if !std::mem::replace(&mut ev.weights[n_named], v).is_nan() {
+            if !store_named(&mut ev.weights, n_names, n_named, v) {
                 return Err(err(lines.line, format!("weight id '{name}' appears twice")));
             }
             n_named += 1;
@@ -469,10 +463,6 @@ fn parse_event(
                     ),
                 ));
             }
-            if !named {
-                named = true;
-                ev.weights.resize(n_names, f64::NAN);
-            }
             let guess = n_named;
             n_named += 1;
             let k = if file.weight_names.get(guess).map(String::as_bytes) == Some(id) {
@@ -488,8 +478,7 @@ fn parse_event(
                     }
                 }
             };
-            // invariant: k < n_names == ev.weights.len()
-            if !std::mem::replace(&mut ev.weights[k], v).is_nan() {
+            if !store_named(&mut ev.weights, n_names, k, v) {
                 return Err(err(
                     line_no,
                     format!("weight id '{}' appears twice", show(id)),
@@ -510,7 +499,7 @@ fn parse_event(
             "<weights> block without </weights>".to_string(),
         ));
     }
-    if named {
+    if !ev.weights.is_empty() {
         if !positional.is_empty() {
             return Err(err(
                 lines.line,
@@ -544,6 +533,24 @@ fn parse_event(
         ));
     }
     Ok(())
+}
+
+/// Stores the named weight number `k` (< `n_names`) of an event: the
+/// slots are made at the first one, NaN marking a weight not yet seen
+/// (`real` and the fast path give finite values only). False, storing
+/// nothing, when weight `k` was already set.
+#[inline]
+fn store_named(weights: &mut Vec<f64>, n_names: usize, k: usize, v: f64) -> bool {
+    if weights.is_empty() {
+        weights.resize(n_names, f64::NAN);
+    }
+    // invariant: k < n_names == weights.len()
+    let slot = &mut weights[k];
+    if !slot.is_nan() {
+        return false;
+    }
+    *slot = v;
+    true
 }
 
 /// Reads the event line `NUP IDPRUP XWGTUP SCALUP AQEDUP AQCDUP` at the
