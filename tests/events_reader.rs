@@ -980,3 +980,38 @@ fn error_numbers_in_a_later_chunk() {
         "{e}"
     );
 }
+
+// An error in the first chunk while many chunks are still to be read: the
+// pass stops with that error (the reader, waiting for room in the window
+// of chunks in flight, is told to stop), on one worker and on all.
+#[test]
+fn early_error_stops_a_long_pass() {
+    let t = lhef_string(&Spec {
+        n_events: 30_000,
+        ..Default::default()
+    });
+    assert!(
+        t.len() > 6 * recoil::events::BLOCK_BYTES,
+        "more chunks than the window"
+    );
+    let n = particle_line(&t, 3, 2);
+    let t = edit_line(&t, n, |l| format!("{l} 7"));
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = write(dir.path(), "bad.lhe", t.as_bytes());
+    for threads in [1, 2] {
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .expect("pool");
+        let e = match pool.install(|| read_all(std::slice::from_ref(&p), ReadOptions::default())) {
+            Ok(_) => panic!("expected an error"),
+            Err(e) => e.to_string(),
+        };
+        assert!(
+            e.contains(&format!(
+                "event 3: line {n}: particle line 2 has 14 columns"
+            )),
+            "{e}"
+        );
+    }
+}

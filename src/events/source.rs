@@ -197,10 +197,11 @@ impl EventSource {
             let (recycled_tx, recycled_rx) = mpsc::channel::<Vec<u8>>();
             // Parsed events of finished chunks, refilled by later chunks.
             let (spare_tx, spare_rx) = mpsc::channel::<Vec<Event>>();
-            // One message per consumed chunk: the reader waits on it while
-            // `window` chunks are in flight; closed when the consumer stops.
-            let (slot_tx, slot_rx) = mpsc::channel::<()>();
-            let consumed_shared = AtomicUsize::new(0);
+            // At most `window` chunks in flight: the reader puts a token in
+            // before it issues a chunk (waiting while the channel is full),
+            // the consumer takes one out per chunk consumed; a dropped
+            // receiver tells the reader that the consumer has stopped.
+            let (slot_tx, slot_rx) = mpsc::sync_channel::<()>(window);
             let mut pending: BTreeMap<usize, Out<T>> = BTreeMap::new();
             let mut consumed = 0usize;
             // The file-order state of the consumer: did the previous chunk
@@ -260,7 +261,6 @@ impl EventSource {
             // parses: chunks spawned from outside the pool go to its shared
             // queue. Returns the bytes read, or the reading error (chunks
             // issued before it still count).
-            let consumed_shared = &consumed_shared;
             let first_failure = &first_failure;
             let map = &map;
             let run = move || -> Result<u64, EventError> {
@@ -333,6 +333,9 @@ impl EventSource {
                         };
                         text_offset += cut as u64;
                         first_event += n_events;
+                        if slot_tx.send(()).is_err() {
+                            return Ok(done_bytes);
+                        }
                         let seq = issued;
                         issued += 1;
                         let tx = tx.clone();
@@ -369,13 +372,6 @@ impl EventSource {
                             }
                             let _ = tx.send((seq, out));
                         });
-                        // At most `window` chunks in flight; a closed slot
-                        // channel means the consumer has stopped.
-                        while issued - consumed_shared.load(Ordering::Acquire) >= window {
-                            if slot_rx.recv().is_err() {
-                                return Ok(done_bytes);
-                            }
-                        }
                         if let Some(p) = progress {
                             p(done_bytes + input.disk_bytes.load(Ordering::Relaxed));
                         }
@@ -385,6 +381,9 @@ impl EventSource {
                 Ok(done_bytes)
             };
             std::thread::scope(|threads| -> Result<(), EventError> {
+                // Owned here, so that an early return (a failed chunk) drops
+                // it before the reader is joined, and the reader stops.
+                let slot_rx = slot_rx;
                 let reader = std::thread::Builder::new()
                     .name("recoil-reader".into())
                     .spawn_scoped(threads, run)
@@ -398,12 +397,12 @@ impl EventSource {
                     pending.insert(seq, out);
                     let before = consumed;
                     drain(&mut pending, &mut consumed, &mut sums)?;
-                    consumed_shared.store(consumed, Ordering::Release);
                     for _ in before..consumed {
-                        let _ = slot_tx.send(());
+                        // invariant: the reader put this chunk's token in
+                        // before issuing it, so this never waits.
+                        let _ = slot_rx.recv();
                     }
                 }
-                drop(slot_tx);
                 match reader.join() {
                     Ok(Ok(bytes)) => {
                         done_bytes = bytes;
