@@ -113,11 +113,12 @@ struct Config {
 
 /// Default couplings and confidence level when no scan supplies them.
 const DEFAULT_GQ: f64 = 0.25;
-/// Nucleon parameter set when neither the option nor a scan folder names one.
-const DEFAULT_NUCLEON_SET: &str = "dmwg2016";
 const DEFAULT_GDM: f64 = 1.0;
 const DEFAULT_GL: f64 = 0.0;
 const DEFAULT_CL: f64 = 0.95;
+/// Nucleon parameter set when neither the option nor a scan folder names
+/// one (also the scan's default, for folders that do not record theirs).
+const DEFAULT_NUCLEON_SET: &str = "dmwg2016";
 
 /// A flag given next to a scan folder must agree with the scan's value:
 /// taking either silently would hide a mistake.
@@ -138,8 +139,12 @@ fn agree<T: PartialEq + std::fmt::Display>(
     }
 }
 
-/// Kind and couplings from a scan folder, with the flags checked against it.
-fn from_scan(a: &TranslateArgs, s: &ScanExclusion) -> anyhow::Result<(MediatorKind, Couplings)> {
+/// Kind, couplings and nucleon parameter set from a scan folder, with the
+/// flags checked against it.
+fn from_scan(
+    a: &TranslateArgs,
+    s: &ScanExclusion,
+) -> anyhow::Result<(MediatorKind, Couplings, NucleonParams)> {
     let given_kind = a
         .mediator
         .as_deref()
@@ -164,6 +169,17 @@ fn from_scan(a: &TranslateArgs, s: &ScanExclusion) -> anyhow::Result<(MediatorKi
         &s.manifest,
     )?;
     agree("--cl", a.cl, s.cl, "limit.cl", &s.manifest)?;
+    let set = s.nucleon_params.as_deref().unwrap_or(DEFAULT_NUCLEON_SET);
+    agree(
+        "--nucleon-set",
+        a.nucleon_set
+            .as_deref()
+            .map(|g| g.trim().to_ascii_lowercase()),
+        set.to_ascii_lowercase(),
+        "nucleon_params",
+        &s.manifest,
+    )?;
+    let params = NucleonParams::by_name(set).context("nucleon_params of the scan")?;
     if s.mediator == MediatorKind::Pseudoscalar {
         return Err(ModelError::MomentumSuppressed)
             .with_context(|| format!("{}: mediator pseudoscalar", s.manifest.display()));
@@ -171,7 +187,7 @@ fn from_scan(a: &TranslateArgs, s: &ScanExclusion) -> anyhow::Result<(MediatorKi
     let couplings = s
         .model_couplings()
         .with_context(|| format!("couplings of the scan in {}", s.dir.display()))?;
-    Ok((s.mediator, couplings))
+    Ok((s.mediator, couplings, params))
 }
 
 impl TryFrom<&TranslateArgs> for Config {
@@ -189,22 +205,7 @@ impl TryFrom<&TranslateArgs> for Config {
             ),
             _ => None,
         };
-        let scan_set = scan.as_ref().and_then(|s| s.nucleon_params.as_deref());
-        let set_name = match (a.nucleon_set.as_deref(), scan_set) {
-            (Some(given), Some(own)) if !given.trim().eq_ignore_ascii_case(own) => {
-                anyhow::bail!(
-                    "--nucleon-set {given} disagrees with the scan (nucleon_params = {own} in \
-                     {}); leave --nucleon-set out to use the scan's set",
-                    scan.as_ref()
-                        .map_or(String::new(), |s| s.manifest.display().to_string())
-                )
-            }
-            (Some(given), _) => given,
-            (None, Some(own)) => own,
-            (None, None) => DEFAULT_NUCLEON_SET,
-        };
-        let params = NucleonParams::by_name(set_name).context("--nucleon-set")?;
-        let (kind, couplings) = match &scan {
+        let (kind, couplings, params) = match &scan {
             Some(s) => from_scan(a, s)?,
             None => {
                 if let Some(p) = &a.curve
@@ -229,7 +230,9 @@ impl TryFrom<&TranslateArgs> for Config {
                     a.gl.unwrap_or(DEFAULT_GL),
                 )
                 .context("--gq/--gdm/--gl")?;
-                (kind, couplings)
+                let set = a.nucleon_set.as_deref().unwrap_or(DEFAULT_NUCLEON_SET);
+                let params = NucleonParams::by_name(set).context("--nucleon-set")?;
+                (kind, couplings, params)
             }
         };
         let mode = match (scan, &a.curve, a.mmed, a.mdm) {
