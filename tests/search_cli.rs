@@ -133,9 +133,9 @@ fn results_are_identical_on_one_and_two_threads() {
     );
 }
 
-/// Runs recast on one demo file with `extra` options and returns stdout
-/// and the `signal_events` column of yields.csv.
-fn run_demo(extra: &[&str]) -> (String, Vec<f64>) {
+/// Runs recast on one demo file with `extra` options: stdout and the
+/// `--out` folder.
+fn recast_demo(extra: &[&str]) -> (String, tempfile::TempDir) {
     let events = concat!(
         env!("CARGO_MANIFEST_DIR"),
         "/demo-events/tenebris_mmed1500_mdm1.lhe.gz"
@@ -154,6 +154,12 @@ fn run_demo(extra: &[&str]) -> (String, Vec<f64>) {
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
+    (String::from_utf8_lossy(&out.stdout).into_owned(), dir)
+}
+
+/// [`recast_demo`]'s stdout and the `signal_events` column of yields.csv.
+fn run_demo(extra: &[&str]) -> (String, Vec<f64>) {
+    let (stdout, dir) = recast_demo(extra);
     let mut r = csv::Reader::from_path(dir.path().join("yields.csv")).unwrap();
     let col = r
         .headers()
@@ -165,7 +171,7 @@ fn run_demo(extra: &[&str]) -> (String, Vec<f64>) {
         .records()
         .map(|rec| rec.unwrap()[col].parse().unwrap())
         .collect();
-    (String::from_utf8_lossy(&out.stdout).into_owned(), signal)
+    (stdout, signal)
 }
 
 #[test]
@@ -218,33 +224,9 @@ fn cross_section_and_luminosity_options_scale_the_signal() {
 // demo-events/tenebris_mmed1500_mdm1.lhe.gz` after a deliberate change.
 #[test]
 fn demo_sample_reproduces_stored_numbers() {
-    let events = concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/demo-events/tenebris_mmed1500_mdm1.lhe.gz"
-    );
     let fixtures = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/recast");
     for threads in ["1", "2"] {
-        let dir = tempfile::tempdir().unwrap();
-        let out = Command::new(env!("CARGO_BIN_EXE_recoil"))
-            .args([
-                "recast",
-                "--search",
-                DEMO,
-                "--seed",
-                "7",
-                "--threads",
-                threads,
-            ])
-            .arg("--out")
-            .arg(dir.path())
-            .arg(events)
-            .output()
-            .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        let (_, dir) = recast_demo(&["--seed", "7", "--threads", threads]);
         for (file, stored) in [
             ("yields.csv", "mmed1500_mdm1_seed7_yields.csv"),
             ("cutflow.csv", "mmed1500_mdm1_seed7_cutflow.csv"),
