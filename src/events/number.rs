@@ -36,14 +36,6 @@ pub fn parse_f64(s: &[u8]) -> Option<f64> {
     std::str::from_utf8(s).ok()?.parse::<f64>().ok()
 }
 
-/// True when the 8 bytes (little-endian in `x`) are all ASCII digits.
-#[inline]
-fn all_digits(x: u64) -> bool {
-    ((x & 0xF0F0_F0F0_F0F0_F0F0)
-        | (((x.wrapping_add(0x0606_0606_0606_0606)) & 0xF0F0_F0F0_F0F0_F0F0) >> 4))
-        == 0x3333_3333_3333_3333
-}
-
 /// Value of 8 ASCII digits (little-endian in `x`, first digit lowest),
 /// by the SWAR reduction of pairs, quads and octets (common practice;
 /// the well-known trick used by fast decimal parsers).
@@ -74,29 +66,61 @@ fn clinger(mant: u64, q: i32) -> Option<f64> {
     }
 }
 
+/// Per byte of `x`: zero exactly where the byte is an ASCII digit, for
+/// the bytes up to the first non-digit (a carry out of a byte ≥ 0xFA can
+/// only make the next byte look like a non-digit, never the reverse).
+#[inline(always)]
+fn non_digit_bytes(x: u64) -> u64 {
+    ((x & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030)
+        | ((x.wrapping_add(0x0606_0606_0606_0606) & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030)
+}
+
 /// The layout `[±]d.dddddddddde±dd` (17 bytes with the sign, 16 without)
-/// that the common LHEF writers use for every real, read without loops;
-/// the value and the bytes used, or `None`.
+/// that the common LHEF writers use for every real, checked and read as
+/// two 8-byte words without loops or per-byte branches; the value and the
+/// bytes used, or `None`.
+///
+/// Word 0 holds `d.dddddd`, word 1 `dddde±dd`: the digit bytes are tested
+/// together against a mask of the digit positions, the `.`, the `e`/`E`
+/// and the exponent sign against a template.
 #[inline(always)]
 fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
-    let signed = matches!(s.first(), Some(b'+' | b'-'));
-    let b = s.get(usize::from(signed)..)?;
-    if b.len() < 16 || b[1] != b'.' || b[12] | 0x20 != b'e' || !matches!(b[13], b'+' | b'-') {
+    let first = *s.first()?;
+    let signed = first == b'+' || first == b'-';
+    let o = usize::from(signed);
+    let b = s.get(o..o + 16)?;
+    // invariant: both slices have exactly 8 bytes
+    let w0 = u64::from_le_bytes(b[..8].try_into().unwrap());
+    let w1 = u64::from_le_bytes(b[8..].try_into().unwrap());
+    // Digit positions: bytes 0 and 2–7 of word 0; 0–3, 6, 7 of word 1.
+    const DIGITS_0: u64 = 0xFFFF_FFFF_FFFF_00FF;
+    const DIGITS_1: u64 = 0xFFFF_0000_FFFF_FFFF;
+    // Byte 1 of word 0 is '.'; byte 4 of word 1 is 'e' or 'E' (bit 5
+    // ignored); byte 5 of word 1 is '+' (0x2B) or '-' (0x2D): of the bytes
+    // matching 0x29 outside bits 1 and 2, exactly those two have bits 1
+    // and 2 different.
+    let e_sign = w1 >> 40;
+    let bad = (non_digit_bytes(w0) & DIGITS_0)
+        | ((w0 ^ 0x2E00) & 0xFF00)
+        | (non_digit_bytes(w1) & DIGITS_1)
+        | ((w1 ^ (0x65 << 32)) & (0xDF << 32))
+        | ((w1 ^ (0x29 << 40)) & (0xF9 << 40))
+        | (((e_sign >> 1) ^ (e_sign >> 2) ^ 1) & 1);
+    if bad != 0 {
         return None;
     }
-    let d = |k: usize| u64::from(b[k].wrapping_sub(b'0'));
-    let (d0, d10, d11, e1, e2) = (d(0), d(10), d(11), d(14), d(15));
-    // invariant: the slice has exactly 8 bytes
-    let x = u64::from_le_bytes(b[2..10].try_into().unwrap());
-    if d0 > 9 || d10 > 9 || d11 > 9 || e1 > 9 || e2 > 9 || !all_digits(x) {
-        return None;
-    }
+    // The eight digits after the point: bytes 2–7 of word 0, 0–1 of word 1.
+    let d1_8 = eight_digits((w0 >> 16) | (w1 << 48));
+    let d0 = w0 & 0xF;
+    let d9 = (w1 >> 16) & 0xF;
+    let d10 = (w1 >> 24) & 0xF;
     // 11 significant digits < 2^53: exact in an f64.
-    let mant = d0 * 10_000_000_000 + eight_digits(x) * 100 + d10 * 10 + d11;
-    let exp = (e1 * 10 + e2) as i32;
-    let q = if b[13] == b'-' { -exp } else { exp } - 10;
+    let mant = d0 * 10_000_000_000 + d1_8 * 100 + d9 * 10 + d10;
+    let exp = (((w1 >> 48) & 0xF) * 10 + ((w1 >> 56) & 0xF)) as i32;
+    // '-' has bit 1 clear, '+' has it set.
+    let q = if e_sign & 2 == 0 { -exp } else { exp } - 10;
     let v = clinger(mant, q)?;
-    Some((if s[0] == b'-' { -v } else { v }, 16 + usize::from(signed)))
+    Some((if first == b'-' { -v } else { v }, 16 + o))
 }
 
 /// 10⁰ … 10⁸ as integers.
@@ -127,9 +151,7 @@ fn first_nonzero_byte(x: u64) -> usize {
 /// a carry out of a non-digit byte only disturbs the bytes after it.
 #[inline(always)]
 fn leading_digits(x: u64) -> usize {
-    let not_digit = ((x & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030)
-        | ((x.wrapping_add(0x0606_0606_0606_0606) & 0xF0F0_F0F0_F0F0_F0F0) ^ 0x3030_3030_3030_3030);
-    first_nonzero_byte(not_digit)
+    first_nonzero_byte(non_digit_bytes(x))
 }
 
 /// Reads a run of decimal digits at `s[*i..]` into `mant` (as more
@@ -367,6 +389,12 @@ impl<'a> Cursor<'a> {
         self.s.get(self.i..).unwrap_or_default()
     }
 
+    /// Bytes read so far.
+    #[inline]
+    pub fn position(&self) -> usize {
+        self.i
+    }
+
     /// Moves the cursor `n` bytes on (to at most the end of the text).
     #[inline]
     pub fn advance(&mut self, n: usize) {
@@ -536,6 +564,55 @@ mod tests {
             "1.23456789012E+4",
         ] {
             check(s);
+        }
+    }
+
+    /// The fixed layout `[±]d.dddddddddde±dd`, checked byte by byte.
+    fn is_fixed_layout(b: &[u8]) -> bool {
+        let b = match b.first() {
+            Some(b'+' | b'-') => &b[1..],
+            _ => b,
+        };
+        b.len() == 16
+            && b.iter().enumerate().all(|(k, &c)| match k {
+                1 => c == b'.',
+                12 => c == b'e' || c == b'E',
+                13 => c == b'+' || c == b'-',
+                _ => c.is_ascii_digit(),
+            })
+    }
+
+    // Every byte value at every position of a signed and an unsigned
+    // fixed-layout number: the word-wise reader accepts exactly the
+    // strings a byte-by-byte check accepts, with the bits of `str::parse`.
+    #[test]
+    fn fixed_layout_accepts_exactly_the_layout() {
+        for base in ["+1.2345678901e+03", "-9.8765432109E-05", "5.1517859143e+02"] {
+            for k in 0..base.len() {
+                for c in 0..=255u8 {
+                    let mut s = base.as_bytes().to_vec();
+                    s[k] = c;
+                    let n = if matches!(s[0], b'+' | b'-') { 17 } else { 16 };
+                    let n = n.min(s.len());
+                    // Clinger's exact range (|q| ≤ 22 for w·10^q, the 11
+                    // digits read as an integer w) bounds the fast path too.
+                    let in_range = || {
+                        let t = std::str::from_utf8(&s[n - 3..n]).unwrap();
+                        let zero = s[n - 16..n - 4].iter().all(|&c| c == b'0' || c == b'.');
+                        zero || (t.parse::<i32>().unwrap() - 10).abs() <= 22
+                    };
+                    let want = is_fixed_layout(&s[..n]) && in_range();
+                    match fixed_layout(&s) {
+                        Some((v, used)) => {
+                            assert!(want, "accepted {:?}", String::from_utf8_lossy(&s));
+                            assert_eq!(used, n);
+                            let text = std::str::from_utf8(&s[..n]).unwrap();
+                            assert_eq!(v.to_bits(), text.parse::<f64>().unwrap().to_bits());
+                        }
+                        None => assert!(!want, "rejected {:?}", String::from_utf8_lossy(&s)),
+                    }
+                }
+            }
         }
     }
 

@@ -111,6 +111,7 @@ pub(crate) fn parse_chunk(
     };
     let mut event_no = place.first_event;
     let mut in_comment = false;
+    let tags = WeightTags::new(file);
     while let Some(raw) = lines.next_line() {
         let line = trim(raw);
         if line.is_empty() {
@@ -135,7 +136,7 @@ pub(crate) fn parse_chunk(
                 out.events.push(Event::default());
             }
             let ev = &mut out.events[n_events];
-            parse_event(&mut lines, file, event_no, ev)?;
+            parse_event(&mut lines, file, &tags, event_no, ev)?;
             add_sums(&mut out.sums, ev);
             n_events += 1;
         } else if line.starts_with(b"</LesHouchesEvents>") {
@@ -209,6 +210,7 @@ const EVENT_COLUMNS: [&str; 6] = ["NUP", "IDPRUP", "XWGTUP", "SCALUP", "AQEDUP",
 fn parse_event(
     lines: &mut Lines<'_>,
     file: &FileInfo,
+    tags: &WeightTags,
     event_no: u64,
     ev: &mut Event,
 ) -> Result<(), BodyFault> {
@@ -376,19 +378,36 @@ fn parse_event(
     let mut saw_weights = false;
     let mut n_named = 0usize;
     loop {
-        // Fast path: the `<wgt>` line of the next declared name, in the
-        // usual form; anything else is read and checked below.
-        if !in_weights
-            && let Some(name) = file.weight_names.get(n_named)
-            && let Some((v, len)) = fast_named_weight(lines.rest(), name.as_bytes())
-        {
-            lines.step_over(len);
-            saw_weights = true;
-            if !store_named(&mut ev.weights, n_names, n_named, v) {
-                return Err(err(lines.line, format!("weight id '{name}' appears twice")));
+        // Fast paths, for the usual layout only; anything else is read and
+        // checked below, with the same result for every line these accept.
+        if !in_weights {
+            // The `<wgt>` line of the next declared name.
+            if let Some(tag) = tags.open.get(n_named)
+                && let Some((v, len)) = fast_named_weight(lines.rest(), tag)
+            {
+                lines.step_over(len);
+                saw_weights = true;
+                if !store_named(&mut ev.weights, n_names, n_named, v) {
+                    let name = &file.weight_names[n_named];
+                    return Err(err(lines.line, format!("weight id '{name}' appears twice")));
+                }
+                n_named += 1;
+                continue;
             }
-            n_named += 1;
-            continue;
+            // The lines around the weights, and the end of the event.
+            let rest = lines.rest();
+            if rest.starts_with(b"<rwgt>\n") {
+                lines.step_over(b"<rwgt>\n".len());
+                continue;
+            }
+            if rest.starts_with(b"</rwgt>\n") {
+                lines.step_over(b"</rwgt>\n".len());
+                continue;
+            }
+            if rest.starts_with(b"</event>\n") {
+                lines.step_over(b"</event>\n".len());
+                break;
+            }
         }
         let Some(raw) = lines.next_line() else {
             return Err(truncated(lines.line));
@@ -566,26 +585,60 @@ fn fast_event_line(text: &[u8]) -> Option<(i32, i32, [f64; 4], usize)> {
     Some((nup, process_id, reals, c.line_end()?))
 }
 
+/// The opening tags `<wgt id='NAME'>` of the declared weight names, in
+/// declaration order, with single and with double quotes.
+pub(crate) struct WeightTags {
+    open: Vec<[Vec<u8>; 2]>,
+}
+
+impl WeightTags {
+    fn new(file: &FileInfo) -> Self {
+        let tag = |name: &str, q: char| format!("<wgt id={q}{name}{q}>").into_bytes();
+        WeightTags {
+            open: file
+                .weight_names
+                .iter()
+                .map(|n| [tag(n, '\''), tag(n, '"')])
+                .collect(),
+        }
+    }
+}
+
+/// True when `text` starts with `prefix`; for prefixes of 8 to 16 bytes
+/// (the usual weight tags) by two overlapping 8-byte comparisons.
+#[inline(always)]
+fn has_prefix(text: &[u8], prefix: &[u8]) -> bool {
+    let n = prefix.len();
+    if (8..=16).contains(&n) && text.len() >= n {
+        // invariant: every slice below has exactly 8 bytes within bounds
+        let word = |s: &[u8], at: usize| u64::from_le_bytes(s[at..at + 8].try_into().unwrap());
+        word(text, 0) == word(prefix, 0) && word(text, n - 8) == word(prefix, n - 8)
+    } else {
+        text.starts_with(prefix)
+    }
+}
+
 /// Reads `<wgt id='NAME'> value </wgt>` (either quote, blanks optional
-/// around the value) at the start of `text` when NAME is `name` and the
-/// value is in the fast-path form, with nothing else on the line: the
-/// value and the length of the line with its newline. `None` sends the
-/// line to the checking slow path, which accepts everything this accepts
-/// with the same result.
+/// around the value) at the start of `text` when the tag is one of `tag`
+/// (the single- and double-quoted forms of the expected name) and the value
+/// is in the fast-path form, with nothing else on the line: the value and
+/// the length of the line with its newline. `None` sends the line to the
+/// checking slow path, which accepts everything this accepts with the same
+/// result.
 #[inline]
-fn fast_named_weight(text: &[u8], name: &[u8]) -> Option<(f64, usize)> {
-    let mut c = Cursor::new(text);
-    c.literal(b"<wgt id=")?;
-    let open = c.rest_bytes();
-    let quote = *open.first()?;
-    if !(quote == b'\'' || quote == b'"')
-        || open.get(1..1 + name.len())? != name
-        || open.get(1 + name.len()..3 + name.len())? != [quote, b'>']
-    {
+fn fast_named_weight(text: &[u8], tag: &[Vec<u8>; 2]) -> Option<(f64, usize)> {
+    let quoted = usize::from(text.get(b"<wgt id=".len()) == Some(&b'"'));
+    let open = &tag[quoted];
+    if !has_prefix(text, open) {
         return None;
     }
-    c.advance(3 + name.len());
+    let mut c = Cursor::new(text);
+    c.advance(open.len());
     let v = c.f64_before_tag()?;
+    // The usual ending, one blank then the closing tag and the newline.
+    if c.rest_bytes().starts_with(b" </wgt>\n") {
+        return Some((v, c.position() + b" </wgt>\n".len()));
+    }
     c.literal(b"</wgt>")?;
     Some((v, c.line_end()?))
 }
