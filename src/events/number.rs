@@ -334,6 +334,16 @@ impl<'a> Cursor<'a> {
 
     #[inline(always)]
     fn number(&mut self, tag_may_follow: bool) -> Option<f64> {
+        // The usual field: one space, the fixed layout, a blank or the
+        // newline; 18 bytes cover the longest such field with its end.
+        if let Some(b) = self.s.get(self.i..self.i + 19)
+            && b[0] == b' '
+            && let Some((v, used)) = fixed_layout(&b[1..])
+            && ends_a_field(b[1 + used])
+        {
+            self.i += 1 + used;
+            return Some(v);
+        }
         self.skip_blanks();
         let (v, used) = fast_f64(self.s.get(self.i..)?)?;
         let end = self.i + used;
