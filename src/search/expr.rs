@@ -59,6 +59,7 @@ pub enum CmpOp {
 }
 
 impl CmpOp {
+    #[inline]
     fn apply(self, a: f64, b: f64) -> bool {
         if a.is_nan() || b.is_nan() {
             return false;
@@ -103,6 +104,17 @@ impl Expr {
                     _ => a / b,
                 }
             }
+        }
+    }
+
+    /// [`Self::eval`] with the leaves (a number, a slot: nearly every cut)
+    /// settled in place, without the call.
+    #[inline(always)]
+    fn value(&self, values: &[f64]) -> f64 {
+        match self {
+            Expr::Number(x) => *x,
+            Expr::Slot(i) => values.get(*i).copied().unwrap_or(f64::NAN),
+            _ => self.eval(values),
         }
     }
 
@@ -193,9 +205,9 @@ impl Cut {
     /// True when the event (its value table) passes.
     pub fn passes(&self, values: &[f64]) -> bool {
         self.terms.iter().all(|c| {
-            let mut left = c.operands[0].eval(values);
+            let mut left = c.operands[0].value(values);
             c.ops.iter().zip(&c.operands[1..]).all(|(op, e)| {
-                let right = e.eval(values);
+                let right = e.value(values);
                 let ok = op.apply(left, right);
                 left = right;
                 ok
