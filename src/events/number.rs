@@ -335,7 +335,8 @@ impl<'a> Cursor<'a> {
     #[inline(always)]
     fn number(&mut self, tag_may_follow: bool) -> Option<f64> {
         // The usual field: one space, the fixed layout, a blank or the
-        // newline; 18 bytes cover the longest such field with its end.
+        // newline; 19 bytes hold the space, at most 17 bytes of number and
+        // the byte that must end it.
         if let Some(b) = self.s.get(self.i..self.i + 19)
             && b[0] == b' '
             && let Some((v, used)) = fixed_layout(&b[1..])

@@ -90,10 +90,21 @@ pub enum Expr {
 }
 
 impl Expr {
+    /// The value on the event's table. The leaves (a number, a slot: the
+    /// operands of nearly every cut) are settled in place; only compound
+    /// expressions take the call.
+    #[inline(always)]
     fn eval(&self, values: &[f64]) -> f64 {
         match self {
             Expr::Number(x) => *x,
             Expr::Slot(i) => values.get(*i).copied().unwrap_or(f64::NAN),
+            Expr::Neg(_) | Expr::Binary(..) => self.eval_compound(values),
+        }
+    }
+
+    #[inline(never)]
+    fn eval_compound(&self, values: &[f64]) -> f64 {
+        match self {
             Expr::Neg(a) => -a.eval(values),
             Expr::Binary(op, a, b) => {
                 let (a, b) = (a.eval(values), b.eval(values));
@@ -104,17 +115,7 @@ impl Expr {
                     _ => a / b,
                 }
             }
-        }
-    }
-
-    /// [`Self::eval`] with the leaves (a number, a slot: nearly every cut)
-    /// settled in place, without the call.
-    #[inline(always)]
-    fn value(&self, values: &[f64]) -> f64 {
-        match self {
-            Expr::Number(x) => *x,
-            Expr::Slot(i) => values.get(*i).copied().unwrap_or(f64::NAN),
-            _ => self.eval(values),
+            Expr::Number(_) | Expr::Slot(_) => self.eval(values),
         }
     }
 
@@ -205,9 +206,9 @@ impl Cut {
     /// True when the event (its value table) passes.
     pub fn passes(&self, values: &[f64]) -> bool {
         self.terms.iter().all(|c| {
-            let mut left = c.operands[0].value(values);
+            let mut left = c.operands[0].eval(values);
             c.ops.iter().zip(&c.operands[1..]).all(|(op, e)| {
-                let right = e.value(values);
+                let right = e.eval(values);
                 let ok = op.apply(left, right);
                 left = right;
                 ok
