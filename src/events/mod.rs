@@ -168,6 +168,7 @@ mod gzip;
 mod init;
 mod number;
 mod parse;
+mod particle_line;
 mod source;
 mod weights;
 

@@ -84,7 +84,7 @@ fn non_digit_bytes(x: u64) -> u64 {
 /// together against a mask of the digit positions, the `.`, the `e`/`E`
 /// and the exponent sign against a template.
 #[inline(always)]
-fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
+pub(super) fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
     let first = *s.first()?;
     let signed = first == b'+' || first == b'-';
     let o = usize::from(signed);
@@ -109,6 +109,17 @@ fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
     if bad != 0 {
         return None;
     }
+    Some((fixed_value(first, w0, w1)?, 16 + o))
+}
+
+/// The value of a number in the fixed layout `[±]d.dddddddddde±dd`, from
+/// its first byte (the sign or the leading digit) and the two 8-byte words
+/// after the sign, once the layout has been checked (by [`fixed_layout`],
+/// or by a line shape that implies it); `None` outside Clinger's exact
+/// range.
+#[inline(always)]
+pub(super) fn fixed_value(first: u8, w0: u64, w1: u64) -> Option<f64> {
+    let e_sign = w1 >> 40;
     // The eight digits after the point: bytes 2–7 of word 0, 0–1 of word 1.
     let d1_8 = eight_digits((w0 >> 16) | (w1 << 48));
     let d0 = w0 & 0xF;
@@ -120,7 +131,7 @@ fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
     // '-' has bit 1 clear, '+' has it set.
     let q = if e_sign & 2 == 0 { -exp } else { exp } - 10;
     let v = clinger(mant, q)?;
-    Some((if first == b'-' { -v } else { v }, 16 + o))
+    Some(if first == b'-' { -v } else { v })
 }
 
 /// 10⁰ … 10⁸ as integers.
@@ -466,7 +477,7 @@ pub struct Fields<'a> {
 
 /// True for a field separator within a line: space, tab, CR.
 #[inline(always)]
-fn is_blank(c: u8) -> bool {
+pub(super) fn is_blank(c: u8) -> bool {
     c == b' ' || c == b'\t' || c == b'\r'
 }
 

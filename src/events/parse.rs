@@ -10,6 +10,7 @@
 
 use super::init::{FileInfo, attribute, lossy as show, opens_tag};
 use super::number::{Cursor, fields, parse_f64, parse_i32, trim};
+use super::particle_line::ShapeMemo;
 use super::{Event, Particle};
 use crate::kinematics::P4;
 
@@ -112,6 +113,7 @@ pub(crate) fn parse_chunk(
     let mut event_no = place.first_event;
     let mut in_comment = false;
     let tags = WeightTags::new(file);
+    let mut shapes = ShapeMemo::default();
     while let Some(raw) = lines.next_line() {
         let line = trim(raw);
         if line.is_empty() {
@@ -136,7 +138,7 @@ pub(crate) fn parse_chunk(
                 out.events.push(Event::default());
             }
             let ev = &mut out.events[n_events];
-            parse_event(&mut lines, file, &tags, event_no, ev)?;
+            parse_event(&mut lines, file, &tags, &mut shapes, event_no, ev)?;
             add_sums(&mut out.sums, ev);
             n_events += 1;
         } else if line.starts_with(b"</LesHouchesEvents>") {
@@ -211,6 +213,7 @@ fn parse_event(
     lines: &mut Lines<'_>,
     file: &FileInfo,
     tags: &WeightTags,
+    shapes: &mut ShapeMemo,
     event_no: u64,
     ev: &mut Event,
 ) -> Result<(), BodyFault> {
@@ -287,7 +290,7 @@ fn parse_event(
 
     // Particle lines.
     for i in 0..nup {
-        if let Some((p, len)) = fast_particle(lines.rest()) {
+        if let Some((p, len)) = fast_particle(lines.rest(), shapes) {
             ev.particles.push(p);
             lines.step_over(len);
             continue;
@@ -648,21 +651,33 @@ fn fast_named_weight(text: &[u8], tag: &[Vec<u8>; 2]) -> Option<(f64, usize)> {
 /// the line with its newline. `None` sends the line to the checking slow
 /// path.
 #[inline]
-fn fast_particle(text: &[u8]) -> Option<(Particle, usize)> {
+fn fast_particle(text: &[u8], memo: &mut ShapeMemo) -> Option<(Particle, usize)> {
     let mut c = Cursor::new(text);
     let id = c.i32()?;
     let status = c.i32()?;
     let m1 = u32::try_from(c.i32()?).ok()?;
     let m2 = u32::try_from(c.i32()?).ok()?;
     let colour = [c.i32()?, c.i32()?];
-    let px = c.f64()?;
-    let py = c.f64()?;
-    let pz = c.f64()?;
-    let e = c.f64()?;
-    let mass_gev = c.f64()?;
-    let lifetime_mm = c.f64()?;
-    let spin = c.f64()?;
-    let len = c.line_end()?;
+    let ints = c.position();
+    // The real columns: by the shape of an earlier line, else field by
+    // field (and their shape is remembered for the next line).
+    let ([px, py, pz, e, mass_gev, lifetime_mm, spin], len) = match memo.read(&text[ints..]) {
+        Some((r, len)) => (r, ints + len),
+        None => {
+            let r = [
+                c.f64()?,
+                c.f64()?,
+                c.f64()?,
+                c.f64()?,
+                c.f64()?,
+                c.f64()?,
+                c.f64()?,
+            ];
+            let len = c.line_end()?;
+            memo.learn(&text[ints..]);
+            (r, len)
+        }
+    };
     Some((
         Particle {
             id,
@@ -711,4 +726,52 @@ fn looks_like_particle(line: &[u8]) -> bool {
         n += 1;
     }
     n == 13
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Particle lines of the shape the common writers print, and others;
+    /// each read by a memo primed with every other line (so the shape of
+    /// the line before is sometimes the same, sometimes not) must give what
+    /// the field-by-field reader gives with a fresh memo.
+    #[test]
+    fn remembered_shapes_read_like_the_field_reader() {
+        let lines: [&[u8]; 8] = [
+            b"       21 -1    0    0  501  502 +0.0000000000e+00 +0.0000000000e+00 +1.5857467720e+03 +1.5857467720e+03 +0.0000000000e+00 +0.0000000000e+00 +9.0000000000e+00\n",
+            b"        2 -1    0    0  503    0 -1.1709384069e+01 +9.9358048851e+01 -2.1484994942e+02 +2.1484994942e+02 +3.3000000000e-01 +0.0000000000e+00 -1.0000000000e+00\n",
+            b"  1000022  1    4    4    0    0 -4.1319258546E+02 -2.2472927203E+02 +4.7746549199E+02 +6.7030191289E+02 +1.0000000000E+01 +0.0000000000E+00 +9.0000000000E+00\n",
+            b"-11 1 3 3 0 0 1.5 -2.25 30 40 0.000511 0 -1\n",
+            b"       -5  1    3    3    0  501 +4.2490196953e+02 +3.2408732088e+02 +5.2757402443e+02 +7.5100507756e+02 +4.7000000000e+00 +0.0000000000e+00 +1.0000000000e+00 \r\n",
+            b"       -5  1    3    3    0  501 +4.2490196953e+02 +3.2408732088e+02 +5.2757402443e+02 +7.5100507756e+02 +4.7000000000e+00 +1.0000000000e-30 +1.0000000000e+00\n",
+            b"       22  1    1    2    0    0  1.2345678901e+02 -6.5432109876e-01  2.0000000000e+00  1.2345678901e+02  0.0000000000e+00  0.0000000000e+00  9.0000000000e+00\n",
+            b"       22  1    1    2    0    0 +1.2345678901e+02 -6.5432109876e-01 +2.0000000000e+00 +1.2345678901e+02 +0.0000000000e+00 +0.0000000000e+00 +9.0000000000e+00 <\n",
+        ];
+        // Debug text of the particle: every f64 in its shortest round-trip
+        // form, which tells apart any two different values, -0 and +0 too.
+        let key = |r: Option<(Particle, usize)>| format!("{r:?}");
+        // Reference values by `str::parse` for the line read by both.
+        let want_px = -1.1709384069e+01f64;
+        for primer in &lines {
+            for line in &lines {
+                let mut text = line.to_vec();
+                // The next line of the text, as in a real event.
+                text.extend_from_slice(b"</event>\n");
+                let mut memo = ShapeMemo::default();
+                let _ = fast_particle(primer, &mut memo);
+                let primed = key(fast_particle(&text, &mut memo));
+                let fresh = key(fast_particle(&text, &mut ShapeMemo::default()));
+                assert_eq!(
+                    primed,
+                    fresh,
+                    "primer {:?}, line {:?}",
+                    String::from_utf8_lossy(primer),
+                    String::from_utf8_lossy(line)
+                );
+            }
+        }
+        let (p, _) = fast_particle(lines[1], &mut ShapeMemo::default()).unwrap();
+        assert_eq!(p.p4.px.to_bits(), want_px.to_bits());
+    }
 }

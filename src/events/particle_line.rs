@@ -1,0 +1,445 @@
+//! The seven real columns of particle lines (px py pz E m VTIMUP SPINUP)
+//! written by one fixed format, read in one pass once a line has shown
+//! their layout.
+//!
+//! Used by [`super::parse`]. A writer prints every particle line of a file
+//! with the same format, so the text after the sixth integer column has the
+//! same shape on every line: the same blanks at the same places, each real
+//! in the layout `[±]d.dddddddddde±dd`, the newline at the same place. The
+//! first line read field by field records that shape ([`RealColumns`]);
+//! each later line is compared with it as a whole, sixteen bytes at a time,
+//! and its reals are then converted at known places without any further
+//! scanning. A line of any other shape goes on to the field-by-field
+//! reader, so both give the same result for every line.
+
+use super::number::{fixed_layout, fixed_value, is_blank};
+
+/// Number of real columns on a particle line.
+const N_REALS: usize = 7;
+
+/// Width of a block compared at once [bytes].
+const BLOCK: usize = 16;
+
+/// Longest shape remembered [bytes]: ten blocks, room for seven reals with
+/// up to four blanks before each (the common writers use one).
+const MAX_LEN: usize = 10 * BLOCK;
+
+/// The shape-defining form of a byte: every digit reads as `0`, the two
+/// signs as `+`, the two exponent letters as `e`; every other byte as
+/// itself. Two texts have the same canonical bytes exactly when they have
+/// their digits, signs, exponent letters and all other bytes at the same
+/// places.
+#[inline]
+fn canonical(c: u8) -> u8 {
+    match c {
+        b'0'..=b'9' => b'0',
+        b'-' => b'+',
+        b'E' => b'e',
+        c => c,
+    }
+}
+
+/// The shape of the real columns of a particle line, from the byte after
+/// the sixth integer column to the newline.
+#[derive(Debug, Clone)]
+pub(super) struct RealColumns {
+    /// Canonical bytes of the shape, zero-padded to [`MAX_LEN`].
+    canon: [u8; MAX_LEN],
+    /// Per byte of `canon`: 0xFF beyond the shape (not compared), else 0.
+    beyond: [u8; MAX_LEN],
+    /// Length of the shape, the newline included [bytes], ≤ [`MAX_LEN`].
+    len: usize,
+    /// Offset of each real's first byte (its sign, or its leading digit).
+    at: [usize; N_REALS],
+    /// Offset of each real's leading digit; at most `MAX_LEN − 16`.
+    digits_at: [usize; N_REALS],
+}
+
+impl RealColumns {
+    /// The shape of `text` (starting just after the sixth integer column)
+    /// when it is seven blank-separated reals in the fixed layout, then
+    /// optional blanks and the newline, in at most [`MAX_LEN`] bytes;
+    /// `None` for any other text.
+    pub(super) fn learn(text: &[u8]) -> Option<Self> {
+        let mut at = [0usize; N_REALS];
+        let mut digits_at = [0usize; N_REALS];
+        let mut i = 0;
+        for k in 0..N_REALS {
+            let start = i;
+            while text.get(i).is_some_and(|&c| is_blank(c)) {
+                i += 1;
+            }
+            if i == start {
+                return None;
+            }
+            let (_, used) = fixed_layout(&text[i..])?;
+            at[k] = i;
+            // The layout is 16 bytes after an optional sign.
+            digits_at[k] = i + used - 16;
+            i += used;
+        }
+        while text.get(i).is_some_and(|&c| is_blank(c)) {
+            i += 1;
+        }
+        if text.get(i) != Some(&b'\n') {
+            return None;
+        }
+        let len = i + 1;
+        if len > MAX_LEN {
+            return None;
+        }
+        let mut canon = [0u8; MAX_LEN];
+        for (t, &c) in canon.iter_mut().zip(&text[..len]) {
+            *t = canonical(c);
+        }
+        let mut beyond = [0xFFu8; MAX_LEN];
+        beyond[..len].fill(0);
+        Some(Self {
+            canon,
+            beyond,
+            len,
+            at,
+            digits_at,
+        })
+    }
+
+    /// The seven reals of `text` and the length of its shape (newline
+    /// included) when `text` starts with this shape; `None` otherwise, or
+    /// when a value lies outside the exact conversion range.
+    #[inline]
+    pub(super) fn read(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        let Some(window) = text.first_chunk::<MAX_LEN>() else {
+            // Near the end of the text (the last lines of a chunk).
+            return self.read_short(text);
+        };
+        if !self.matches_window(window) {
+            return None;
+        }
+        let mut r = [0.0f64; N_REALS];
+        for k in 0..N_REALS {
+            // invariant: the shape puts a whole fixed-layout number at
+            // `at[k]`, its 16 bytes after the sign at `digits_at[k]` ≤
+            // MAX_LEN − 16 (so the `min` changes nothing)
+            let o = self.digits_at[k].min(MAX_LEN - 16);
+            let w0 = u64::from_le_bytes(window[o..o + 8].try_into().unwrap());
+            let w1 = u64::from_le_bytes(window[o + 8..o + 16].try_into().unwrap());
+            r[k] = fixed_value(window[self.at[k]], w0, w1)?;
+        }
+        Some((r, self.len))
+    }
+
+    /// [`Self::read`] for a text shorter than [`MAX_LEN`].
+    #[inline(never)]
+    fn read_short(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        let mut window = [0u8; MAX_LEN];
+        let n = text.len().min(MAX_LEN);
+        window[..n].copy_from_slice(&text[..n]);
+        if !self.matches_bytewise(text) {
+            return None;
+        }
+        self.read(&window)
+    }
+
+    /// True when `text` starts with this shape.
+    #[cfg(test)]
+    fn matches(&self, text: &[u8]) -> bool {
+        match text.first_chunk::<MAX_LEN>() {
+            Some(w) => self.matches_window(w),
+            None => self.matches_bytewise(text),
+        }
+    }
+
+    /// True when `window` starts with this shape.
+    #[inline]
+    fn matches_window(&self, window: &[u8; MAX_LEN]) -> bool {
+        #[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
+        {
+            // SAFETY: `matches_sse2` needs only SSE2, which this build
+            // enables (the `cfg` above; every x86-64 target does).
+            unsafe { self.matches_sse2(window) }
+        }
+        #[cfg(not(all(target_arch = "x86_64", target_feature = "sse2")))]
+        self.matches_bytewise(window)
+    }
+
+    /// True when `text` starts with this shape, one byte at a time.
+    fn matches_bytewise(&self, text: &[u8]) -> bool {
+        text.len() >= self.len
+            && text[..self.len]
+                .iter()
+                .zip(&self.canon)
+                .all(|(&c, &t)| canonical(c) == t)
+    }
+
+    /// [`Self::matches_window`] sixteen bytes at a time with SSE2 (part of
+    /// every x86-64 processor): each block is made canonical with
+    /// byte-wise compares and compared with the shape.
+    #[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
+    #[target_feature(enable = "sse2")]
+    #[inline]
+    fn matches_sse2(&self, window: &[u8; MAX_LEN]) -> bool {
+        use std::arch::x86_64::{
+            __m128i, _mm_and_si128, _mm_cmpeq_epi8, _mm_max_epu8, _mm_movemask_epi8, _mm_or_si128,
+            _mm_set_epi64x, _mm_set1_epi8, _mm_sub_epi8,
+        };
+        // invariant: every block below has exactly 16 bytes
+        let load = |b: &[u8]| -> __m128i {
+            let lo = u64::from_le_bytes(b[..8].try_into().unwrap());
+            let hi = u64::from_le_bytes(b[8..].try_into().unwrap());
+            _mm_set_epi64x(hi as i64, lo as i64)
+        };
+        let zero = _mm_set1_epi8(b'0' as i8);
+        let nine = _mm_set1_epi8(9);
+        let minus = _mm_set1_epi8(b'-' as i8);
+        let minus_to_plus = _mm_set1_epi8((b'-' - b'+') as i8);
+        let upper_e = _mm_set1_epi8(b'E' as i8);
+        let lower_case_bit = _mm_set1_epi8((b'e' - b'E') as i8);
+        let mut all = _mm_set1_epi8(-1);
+        for k in 0..MAX_LEN / BLOCK {
+            let at = k * BLOCK;
+            let x = load(&window[at..at + BLOCK]);
+            // Digits: x − '0' ≤ 9 unsigned; they become '0'.
+            let d = _mm_sub_epi8(x, zero);
+            let digit = _mm_cmpeq_epi8(_mm_max_epu8(d, nine), nine);
+            let mut y = _mm_sub_epi8(x, _mm_and_si128(digit, d));
+            // '-' becomes '+', 'E' becomes 'e'.
+            y = _mm_sub_epi8(y, _mm_and_si128(_mm_cmpeq_epi8(x, minus), minus_to_plus));
+            y = _mm_or_si128(y, _mm_and_si128(_mm_cmpeq_epi8(x, upper_e), lower_case_bit));
+            let same = _mm_cmpeq_epi8(y, load(&self.canon[at..at + BLOCK]));
+            let skip = load(&self.beyond[at..at + BLOCK]);
+            all = _mm_and_si128(all, _mm_or_si128(same, skip));
+        }
+        _mm_movemask_epi8(all) == 0xFFFF
+    }
+}
+
+/// Shape changes learned at most per chunk: a file whose lines keep
+/// changing shape stops paying for learning and is read field by field.
+const MAX_LEARNED: u32 = 64;
+
+/// The shape of the latest particle line read field by field, for the
+/// lines of one chunk.
+#[derive(Debug, Default)]
+pub(super) struct ShapeMemo {
+    shape: Option<RealColumns>,
+    learned: u32,
+}
+
+impl ShapeMemo {
+    /// [`RealColumns::read`] by the remembered shape; `None` without one.
+    #[inline]
+    pub(super) fn read(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        self.shape.as_ref()?.read(text)
+    }
+
+    /// Remembers the shape of `text`, the real part of a line that the
+    /// field-by-field reader accepted and the remembered shape did not.
+    #[inline(never)]
+    pub(super) fn learn(&mut self, text: &[u8]) {
+        if self.learned < MAX_LEARNED {
+            self.learned += 1;
+            if let Some(s) = RealColumns::learn(text) {
+                self.shape = Some(s);
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A particle line's real part as the common writers print it
+    /// (`%+.10e` with one space before each column).
+    const USUAL: &[u8] = b" +1.1709384069e+01 -9.9358048851e+01 +1.0050395164e+03 +1.4213069905e+03 +1.0000000000e+03 +0.0000000000e+00 +9.0000000000e+00\n";
+
+    /// The seven values by `str::parse` (the reference) when the text is
+    /// seven blank-separated numbers and a newline, as the field-by-field
+    /// reader takes it.
+    fn by_fields(text: &[u8]) -> Option<[f64; N_REALS]> {
+        let line = std::str::from_utf8(text.strip_suffix(b"\n")?).ok()?;
+        let v: Vec<f64> = line
+            .split([' ', '\t', '\r'])
+            .filter(|f| !f.is_empty())
+            .map(|f| f.parse::<f64>().ok())
+            .collect::<Option<_>>()?;
+        v.try_into().ok()
+    }
+
+    /// True when the signed fixed-layout number at `at` lies in Clinger's
+    /// exact range: a zero mantissa, or a decimal exponent q (of the
+    /// integer of its eleven digits) with |q| ≤ 22 (Clinger 1990, Sec. 5).
+    fn exact_range(text: &[u8], at: usize) -> bool {
+        let digits = [&text[at + 1..at + 2], &text[at + 3..at + 13]].concat();
+        let zero = digits.iter().all(|&c| c == b'0');
+        let e: i32 = std::str::from_utf8(&text[at + 14..at + 17])
+            .unwrap()
+            .parse()
+            .unwrap();
+        zero || (-22..=22).contains(&(e - 10))
+    }
+
+    /// `read` of `text` by a shape learned from `USUAL`, through both
+    /// comparison routes, which must agree.
+    fn read_both(shape: &RealColumns, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        let mut padded = text.to_vec();
+        padded.resize(text.len() + MAX_LEN, b'x');
+        let fast = shape.read(&padded);
+        assert_eq!(
+            shape.matches_bytewise(text),
+            shape.matches(&padded),
+            "the two comparisons disagree on {:?}",
+            String::from_utf8_lossy(text)
+        );
+        let exact = shape.read(text);
+        assert_eq!(fast, exact, "padding changed the result");
+        fast
+    }
+
+    #[test]
+    fn the_usual_line_is_learned_and_read_like_str_parse() {
+        let shape = RealColumns::learn(USUAL).expect("the usual layout is learned");
+        let (v, len) = read_both(&shape, USUAL).expect("a line reads by its own shape");
+        assert_eq!(len, USUAL.len());
+        let want = by_fields(USUAL).unwrap();
+        for (a, b) in v.iter().zip(&want) {
+            assert_eq!(a.to_bits(), b.to_bits());
+        }
+    }
+
+    #[test]
+    fn other_values_of_the_same_shape_are_read_exactly() {
+        let shape = RealColumns::learn(USUAL).unwrap();
+        // Every sign, both exponent letters, digits 0–9 at every place:
+        // a deterministic walk over values (common practice: a linear
+        // congruential generator, Knuth's MMIX constants).
+        let mut state: u64 = 0x2545_f491_4f6c_dd1d;
+        let mut next = || {
+            state = state
+                .wrapping_mul(6_364_136_223_846_793_005)
+                .wrapping_add(1_442_695_040_888_963_407);
+            state >> 33
+        };
+        for _ in 0..5000 {
+            let mut text = USUAL.to_vec();
+            for &at in &shape.at {
+                text[at] = if next() % 2 == 0 { b'+' } else { b'-' };
+                for k in [1, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12] {
+                    text[at + k] = b'0' + (next() % 10) as u8;
+                }
+                text[at + 13] = if next() % 2 == 0 { b'e' } else { b'E' };
+                text[at + 14] = if next() % 2 == 0 { b'+' } else { b'-' };
+                text[at + 15] = b'0' + (next() % 3) as u8;
+                text[at + 16] = b'0' + (next() % 10) as u8;
+            }
+            let want = by_fields(&text).unwrap();
+            match read_both(&shape, &text) {
+                Some((v, len)) => {
+                    assert_eq!(len, text.len());
+                    for (a, b) in v.iter().zip(&want) {
+                        assert_eq!(
+                            a.to_bits(),
+                            b.to_bits(),
+                            "{}",
+                            String::from_utf8_lossy(&text)
+                        );
+                    }
+                }
+                // Only outside the exact range may it decline.
+                None => assert!(
+                    shape.at.iter().any(|&at| !exact_range(&text, at)),
+                    "declined a line in range: {}",
+                    String::from_utf8_lossy(&text)
+                ),
+            }
+        }
+    }
+
+    #[test]
+    fn any_byte_at_any_place_is_accepted_exactly_when_the_shape_holds() {
+        // Each byte of the line replaced by each value: the shape must
+        // accept exactly the lines whose bytes have the same kind at every
+        // place (digit, sign, exponent letter, or the same other byte), as
+        // judged by this test's own per-byte rule.
+        let shape = RealColumns::learn(USUAL).unwrap();
+        let kind = |c: u8| -> u16 {
+            if c.is_ascii_digit() {
+                0
+            } else if c == b'+' || c == b'-' {
+                1
+            } else if c == b'e' || c == b'E' {
+                2
+            } else {
+                3 + u16::from(c)
+            }
+        };
+        for place in 0..USUAL.len() {
+            for byte in 0..=255u8 {
+                let mut text = USUAL.to_vec();
+                text[place] = byte;
+                let same_kind = kind(byte) == kind(USUAL[place]);
+                let got = read_both(&shape, &text);
+                assert_eq!(
+                    shape.matches_bytewise(&text),
+                    same_kind,
+                    "byte {byte:#04x} at place {place}: {}",
+                    String::from_utf8_lossy(&text)
+                );
+                // A changed exponent digit may leave the exact range: the
+                // shape holds, the reading declines.
+                let in_range = !same_kind || shape.at.iter().all(|&at| exact_range(&text, at));
+                assert_eq!(
+                    got.is_some(),
+                    same_kind && in_range,
+                    "place {place} byte {byte}"
+                );
+                if let Some((v, _)) = got {
+                    let want = by_fields(&text).unwrap();
+                    for (a, b) in v.iter().zip(&want) {
+                        assert_eq!(a.to_bits(), b.to_bits());
+                    }
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn shorter_or_shifted_lines_do_not_match() {
+        let shape = RealColumns::learn(USUAL).unwrap();
+        // Cut short anywhere (the end of the text before the newline).
+        for cut in 0..USUAL.len() {
+            assert!(read_both(&shape, &USUAL[..cut]).is_none(), "cut at {cut}");
+        }
+        // One more blank before a column, or a twelfth mantissa digit.
+        let wider = [b" ", USUAL].concat();
+        assert!(read_both(&shape, &wider).is_none());
+        let mut longer = USUAL.to_vec();
+        longer.insert(shape.at[6] + 12, b'5');
+        assert!(read_both(&shape, &longer).is_none());
+    }
+
+    #[test]
+    fn other_layouts_are_not_learned_but_blanks_and_crlf_are() {
+        for text in [
+            &b" 1.5 -2.25 3 4 5 6 7\n"[..],
+            b" +1.0000000000e+01 +1.0000000000e+01\n",
+            b"+1.1709384069e+01 -9.9358048851e+01 +1.0050395164e+03 +1.4213069905e+03 +1.0000000000e+03 +0.0000000000e+00 +9.0000000000e+00\n",
+            b" +1.1709384069e+01 -9.9358048851e+01 +1.0050395164e+03 +1.4213069905e+03 +1.0000000000e+03 +0.0000000000e+00 +9.0000000000e+00 7\n",
+            b" +1.1709384069e+01 -9.9358048851e+01 +1.0050395164e+03 +1.4213069905e+03 +1.0000000000e+03 +0.0000000000e+00 +9.0000000000e+00",
+        ] {
+            assert!(
+                RealColumns::learn(text).is_none(),
+                "{}",
+                String::from_utf8_lossy(text)
+            );
+        }
+        let wide = b"\t 1.1709384069E+01  -9.9358048851e-01 +1.0050395164e+03 +1.4213069905e+03 +1.0000000000e+03 +0.0000000000e+00 9.0000000000e+00 \r\n";
+        let shape = RealColumns::learn(wide).expect("blanks, CR and unsigned reals are learned");
+        let (v, len) = read_both(&shape, wide).unwrap();
+        assert_eq!(len, wide.len());
+        let want = by_fields(wide).unwrap();
+        for (a, b) in v.iter().zip(&want) {
+            assert_eq!(a.to_bits(), b.to_bits());
+        }
+    }
+}
