@@ -290,7 +290,7 @@ fn parse_event(
 
     // Particle lines.
     for i in 0..nup {
-        if let Some((p, len)) = fast_particle(lines.rest(), shapes) {
+        if let Some((p, len)) = fast_particle(lines.rest(), i as usize, shapes) {
             ev.particles.push(p);
             lines.step_over(len);
             continue;
@@ -651,19 +651,26 @@ fn fast_named_weight(text: &[u8], tag: &[Vec<u8>; 2]) -> Option<(f64, usize)> {
 /// the line with its newline. `None` sends the line to the checking slow
 /// path.
 #[inline]
-fn fast_particle(text: &[u8], memo: &mut ShapeMemo) -> Option<(Particle, usize)> {
-    let mut c = Cursor::new(text);
-    let id = c.i32()?;
-    let status = c.i32()?;
-    let m1 = u32::try_from(c.i32()?).ok()?;
-    let m2 = u32::try_from(c.i32()?).ok()?;
-    let colour = [c.i32()?, c.i32()?];
-    let ints = c.position();
-    // The real columns: by the shape of an earlier line, else field by
-    // field (and their shape is remembered for the next line).
-    let ([px, py, pz, e, mass_gev, lifetime_mm, spin], len) = match memo.read(&text[ints..]) {
+fn fast_particle(text: &[u8], place: usize, memo: &mut ShapeMemo) -> Option<(Particle, usize)> {
+    // Each part by the shape of an earlier line, else field by field (and
+    // its shape is remembered for the next line).
+    let ([id, status, m1, m2, c1, c2], ints) = match memo.read_ints(place, text) {
+        Some(x) => x,
+        None => {
+            let mut c = Cursor::new(text);
+            let v = [c.i32()?, c.i32()?, c.i32()?, c.i32()?, c.i32()?, c.i32()?];
+            memo.learn_ints(place, text);
+            (v, c.position())
+        }
+    };
+    let m1 = u32::try_from(m1).ok()?;
+    let m2 = u32::try_from(m2).ok()?;
+    let colour = [c1, c2];
+    let rest = &text[ints..];
+    let ([px, py, pz, e, mass_gev, lifetime_mm, spin], len) = match memo.read_reals(rest) {
         Some((r, len)) => (r, ints + len),
         None => {
+            let mut c = Cursor::new(rest);
             let r = [
                 c.f64()?,
                 c.f64()?,
@@ -674,8 +681,8 @@ fn fast_particle(text: &[u8], memo: &mut ShapeMemo) -> Option<(Particle, usize)>
                 c.f64()?,
             ];
             let len = c.line_end()?;
-            memo.learn(&text[ints..]);
-            (r, len)
+            memo.learn_reals(rest);
+            (r, ints + len)
         }
     };
     Some((
@@ -759,9 +766,9 @@ mod tests {
                 // The next line of the text, as in a real event.
                 text.extend_from_slice(b"</event>\n");
                 let mut memo = ShapeMemo::default();
-                let _ = fast_particle(primer, &mut memo);
-                let primed = key(fast_particle(&text, &mut memo));
-                let fresh = key(fast_particle(&text, &mut ShapeMemo::default()));
+                let _ = fast_particle(primer, 0, &mut memo);
+                let primed = key(fast_particle(&text, 0, &mut memo));
+                let fresh = key(fast_particle(&text, 0, &mut ShapeMemo::default()));
                 assert_eq!(
                     primed,
                     fresh,
@@ -771,7 +778,7 @@ mod tests {
                 );
             }
         }
-        let (p, _) = fast_particle(lines[1], &mut ShapeMemo::default()).unwrap();
+        let (p, _) = fast_particle(lines[1], 0, &mut ShapeMemo::default()).unwrap();
         assert_eq!(p.p4.px.to_bits(), want_px.to_bits());
     }
 }

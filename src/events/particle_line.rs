@@ -1,28 +1,42 @@
-//! The seven real columns of particle lines (px py pz E m VTIMUP SPINUP)
-//! written by one fixed format, read in one pass once a line has shown
-//! their layout.
+//! The columns of particle lines written by one fixed format, read in one
+//! pass once a line has shown their layout.
 //!
 //! Used by [`super::parse`]. A writer prints every particle line of a file
-//! with the same format, so the text after the sixth integer column has the
-//! same shape on every line: the same blanks at the same places, each real
-//! in the layout `[±]d.dddddddddde±dd`, the newline at the same place. The
-//! first line read field by field records that shape ([`RealColumns`]);
-//! each later line is compared with it as a whole, sixteen bytes at a time,
-//! and its reals are then converted at known places without any further
-//! scanning. A line of any other shape goes on to the field-by-field
-//! reader, so both give the same result for every line.
+//! with the same format, so the seven real columns (px py pz E m VTIMUP
+//! SPINUP) have the same shape on every line: the same blanks at the same
+//! places, each real in the layout `[±]d.dddddddddde±dd`, the newline at
+//! the same place. The six integer columns (IDUP ISTUP MOTHUP ICOLUP) keep
+//! their shape from one event to the next at the same place in the event,
+//! as long as their numbers of digits do not change. The first line read
+//! field by field records these shapes ([`RealColumns`], and an
+//! [`IntColumns`] per place in the event); each later line is compared
+//! with them as a whole, sixteen bytes at a time, and its numbers are then
+//! converted at known places without any further scanning. A line of any
+//! other shape goes on to the field-by-field reader, so both give the same
+//! result for every line.
 
 use super::number::{fixed_layout, fixed_value, is_blank};
 
 /// Number of real columns on a particle line.
 const N_REALS: usize = 7;
 
+/// Number of integer columns on a particle line.
+const N_INTS: usize = 6;
+
 /// Width of a block compared at once [bytes].
 const BLOCK: usize = 16;
 
-/// Longest shape remembered [bytes]: ten blocks, room for seven reals with
-/// up to four blanks before each (the common writers use one).
+/// Longest real part remembered [bytes]: ten blocks, room for seven reals
+/// with up to four blanks before each (the common writers use one).
 const MAX_LEN: usize = 10 * BLOCK;
+
+/// Longest integer part remembered [bytes]: three blocks, room for the
+/// usual widths (`%9d%3d%5d%5d%5d%5d`, 32 bytes) and more.
+const INT_LEN: usize = 3 * BLOCK;
+
+/// Most digits of an integer column read by shape: every such number fits
+/// an `i32` (longer ones are read field by field).
+const MAX_INT_DIGITS: usize = 9;
 
 /// The shape-defining form of a byte: every digit reads as `0`, the two
 /// signs as `+`, the two exponent letters as `e`; every other byte as
@@ -39,119 +53,37 @@ fn canonical(c: u8) -> u8 {
     }
 }
 
-/// The shape of the real columns of a particle line, from the byte after
-/// the sixth integer column to the newline.
+/// The canonical bytes of a text of at most `N` bytes, to compare other
+/// texts with.
 #[derive(Debug, Clone)]
-pub(super) struct RealColumns {
-    /// Canonical bytes of the shape, zero-padded to [`MAX_LEN`].
-    canon: [u8; MAX_LEN],
-    /// Per byte of `canon`: 0xFF beyond the shape (not compared), else 0.
-    beyond: [u8; MAX_LEN],
-    /// Length of the shape, the newline included [bytes], ≤ [`MAX_LEN`].
+struct Shape<const N: usize> {
+    /// Canonical bytes of the text, zero-padded to `N`.
+    canon: [u8; N],
+    /// Per byte of `canon`: 0xFF beyond the text (not compared), else 0.
+    beyond: [u8; N],
+    /// Length of the text [bytes], ≤ `N`.
     len: usize,
-    /// Offset of each real's first byte (its sign, or its leading digit).
-    at: [usize; N_REALS],
-    /// Offset of each real's leading digit; at most `MAX_LEN − 16`.
-    digits_at: [usize; N_REALS],
 }
 
-impl RealColumns {
-    /// The shape of `text` (starting just after the sixth integer column)
-    /// when it is seven blank-separated reals in the fixed layout, then
-    /// optional blanks and the newline, in at most [`MAX_LEN`] bytes;
-    /// `None` for any other text.
-    pub(super) fn learn(text: &[u8]) -> Option<Self> {
-        let mut at = [0usize; N_REALS];
-        let mut digits_at = [0usize; N_REALS];
-        let mut i = 0;
-        for k in 0..N_REALS {
-            let start = i;
-            while text.get(i).is_some_and(|&c| is_blank(c)) {
-                i += 1;
-            }
-            if i == start {
-                return None;
-            }
-            let (_, used) = fixed_layout(&text[i..])?;
-            at[k] = i;
-            // The layout is 16 bytes after an optional sign.
-            digits_at[k] = i + used - 16;
-            i += used;
-        }
-        while text.get(i).is_some_and(|&c| is_blank(c)) {
-            i += 1;
-        }
-        if text.get(i) != Some(&b'\n') {
+impl<const N: usize> Shape<N> {
+    /// The shape of `text`; `None` when it is longer than `N` bytes.
+    fn of(text: &[u8]) -> Option<Self> {
+        let len = text.len();
+        if len > N {
             return None;
         }
-        let len = i + 1;
-        if len > MAX_LEN {
-            return None;
-        }
-        let mut canon = [0u8; MAX_LEN];
-        for (t, &c) in canon.iter_mut().zip(&text[..len]) {
+        let mut canon = [0u8; N];
+        for (t, &c) in canon.iter_mut().zip(text) {
             *t = canonical(c);
         }
-        let mut beyond = [0xFFu8; MAX_LEN];
+        let mut beyond = [0xFFu8; N];
         beyond[..len].fill(0);
-        Some(Self {
-            canon,
-            beyond,
-            len,
-            at,
-            digits_at,
-        })
-    }
-
-    /// The seven reals of `text` and the length of its shape (newline
-    /// included) when `text` starts with this shape; `None` otherwise, or
-    /// when a value lies outside the exact conversion range.
-    #[inline]
-    pub(super) fn read(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
-        let Some(window) = text.first_chunk::<MAX_LEN>() else {
-            // Near the end of the text (the last lines of a chunk).
-            return self.read_short(text);
-        };
-        if !self.matches_window(window) {
-            return None;
-        }
-        let mut r = [0.0f64; N_REALS];
-        for k in 0..N_REALS {
-            // invariant: the shape puts a whole fixed-layout number at
-            // `at[k]`, its 16 bytes after the sign at `digits_at[k]` ≤
-            // MAX_LEN − 16 (so the `min` changes nothing)
-            let o = self.digits_at[k].min(MAX_LEN - 16);
-            let w0 = u64::from_le_bytes(window[o..o + 8].try_into().unwrap());
-            let w1 = u64::from_le_bytes(window[o + 8..o + 16].try_into().unwrap());
-            r[k] = fixed_value(window[self.at[k]], w0, w1)?;
-        }
-        Some((r, self.len))
-    }
-
-    /// [`Self::read`] for a text shorter than [`MAX_LEN`].
-    #[inline(never)]
-    fn read_short(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
-        let mut window = [0u8; MAX_LEN];
-        let n = text.len().min(MAX_LEN);
-        window[..n].copy_from_slice(&text[..n]);
-        if !self.matches_bytewise(text) {
-            return None;
-        }
-        self.read(&window)
-    }
-
-    /// True when `text` starts with this shape.
-    #[cfg(test)]
-    fn matches(&self, text: &[u8]) -> bool {
-        match text.first_chunk::<MAX_LEN>() {
-            Some(w) => self.matches_window(w),
-            None => self.matches_bytewise(text),
-        }
+        Some(Self { canon, beyond, len })
     }
 
     /// True when `window` starts with this shape.
     #[inline]
-    fn matches_window(&self, window: &[u8; MAX_LEN]) -> bool {
+    fn matches_window(&self, window: &[u8; N]) -> bool {
         #[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
         {
             // SAFETY: `matches_sse2` needs only SSE2, which this build
@@ -171,17 +103,27 @@ impl RealColumns {
                 .all(|(&c, &t)| canonical(c) == t)
     }
 
+    /// True when `text` starts with this shape.
+    #[cfg(test)]
+    fn matches(&self, text: &[u8]) -> bool {
+        match text.first_chunk::<N>() {
+            Some(w) => self.matches_window(w),
+            None => self.matches_bytewise(text),
+        }
+    }
+
     /// [`Self::matches_window`] sixteen bytes at a time with SSE2 (part of
     /// every x86-64 processor): each block is made canonical with
     /// byte-wise compares and compared with the shape.
     #[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
     #[target_feature(enable = "sse2")]
     #[inline]
-    fn matches_sse2(&self, window: &[u8; MAX_LEN]) -> bool {
+    fn matches_sse2(&self, window: &[u8; N]) -> bool {
         use std::arch::x86_64::{
             __m128i, _mm_and_si128, _mm_cmpeq_epi8, _mm_max_epu8, _mm_movemask_epi8, _mm_or_si128,
             _mm_set_epi64x, _mm_set1_epi8, _mm_sub_epi8,
         };
+        const { assert!(N.is_multiple_of(BLOCK), "a shape is whole blocks") };
         // invariant: every block below has exactly 16 bytes
         let load = |b: &[u8]| -> __m128i {
             let lo = u64::from_le_bytes(b[..8].try_into().unwrap());
@@ -195,7 +137,7 @@ impl RealColumns {
         let upper_e = _mm_set1_epi8(b'E' as i8);
         let lower_case_bit = _mm_set1_epi8((b'e' - b'E') as i8);
         let mut all = _mm_set1_epi8(-1);
-        for k in 0..MAX_LEN / BLOCK {
+        for k in 0..N / BLOCK {
             let at = k * BLOCK;
             let x = load(&window[at..at + BLOCK]);
             // Digits: x − '0' ≤ 9 unsigned; they become '0'.
@@ -213,33 +155,232 @@ impl RealColumns {
     }
 }
 
-/// Shape changes learned at most per chunk: a file whose lines keep
-/// changing shape stops paying for learning and is read field by field.
+/// The index of the first byte at or after `i` that is not a blank.
+fn after_blanks(text: &[u8], mut i: usize) -> usize {
+    while text.get(i).is_some_and(|&c| is_blank(c)) {
+        i += 1;
+    }
+    i
+}
+
+/// The shape of the real columns of a particle line, from the byte after
+/// the sixth integer column to the newline.
+#[derive(Debug, Clone)]
+pub(super) struct RealColumns {
+    shape: Shape<MAX_LEN>,
+    /// Offset of each real's first byte (its sign, or its leading digit).
+    at: [usize; N_REALS],
+    /// Offset of each real's leading digit; at most `MAX_LEN − 16`.
+    digits_at: [usize; N_REALS],
+}
+
+impl RealColumns {
+    /// The shape of `text` (starting just after the sixth integer column)
+    /// when it is seven blank-separated reals in the fixed layout, then
+    /// optional blanks and the newline, in at most [`MAX_LEN`] bytes;
+    /// `None` for any other text.
+    pub(super) fn learn(text: &[u8]) -> Option<Self> {
+        let mut at = [0usize; N_REALS];
+        let mut digits_at = [0usize; N_REALS];
+        let mut i = 0;
+        for k in 0..N_REALS {
+            let start = i;
+            i = after_blanks(text, i);
+            if i == start {
+                return None;
+            }
+            let (_, used) = fixed_layout(&text[i..])?;
+            at[k] = i;
+            // The layout is 16 bytes after an optional sign.
+            digits_at[k] = i + used - 16;
+            i += used;
+        }
+        i = after_blanks(text, i);
+        if text.get(i) != Some(&b'\n') {
+            return None;
+        }
+        Some(Self {
+            shape: Shape::of(&text[..=i])?,
+            at,
+            digits_at,
+        })
+    }
+
+    /// The seven reals of `text` and the length of its shape (newline
+    /// included) when `text` starts with this shape; `None` otherwise, or
+    /// when a value lies outside the exact conversion range.
+    #[inline]
+    pub(super) fn read(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        let Some(window) = text.first_chunk::<MAX_LEN>() else {
+            // Near the end of the text (the last lines of a chunk).
+            return self.read_short(text);
+        };
+        if !self.shape.matches_window(window) {
+            return None;
+        }
+        let mut r = [0.0f64; N_REALS];
+        for k in 0..N_REALS {
+            // invariant: the shape puts a whole fixed-layout number at
+            // `at[k]`, its 16 bytes after the sign at `digits_at[k]` ≤
+            // MAX_LEN − 16 (so the `min` changes nothing)
+            let o = self.digits_at[k].min(MAX_LEN - 16);
+            let w0 = u64::from_le_bytes(window[o..o + 8].try_into().unwrap());
+            let w1 = u64::from_le_bytes(window[o + 8..o + 16].try_into().unwrap());
+            r[k] = fixed_value(window[self.at[k]], w0, w1)?;
+        }
+        Some((r, self.shape.len))
+    }
+
+    /// [`Self::read`] for a text shorter than [`MAX_LEN`].
+    #[inline(never)]
+    fn read_short(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        if !self.shape.matches_bytewise(text) {
+            return None;
+        }
+        let mut window = [0u8; MAX_LEN];
+        let n = text.len().min(MAX_LEN);
+        window[..n].copy_from_slice(&text[..n]);
+        self.read(&window)
+    }
+}
+
+/// The shape of the six integer columns of a particle line, from the line
+/// start to the last digit of the sixth.
+#[derive(Debug, Clone)]
+pub(super) struct IntColumns {
+    shape: Shape<INT_LEN>,
+    /// Per column: offset of the first digit; at most `INT_LEN − 9`.
+    digits_at: [usize; N_INTS],
+    /// Per column: number of digits, 1 to [`MAX_INT_DIGITS`].
+    n_digits: [usize; N_INTS],
+    /// Per column: true when a sign byte precedes the digits.
+    signed: [bool; N_INTS],
+}
+
+impl IntColumns {
+    /// The shape of the start of `text` when it is six blank-separated
+    /// integers `[±]digits` of at most [`MAX_INT_DIGITS`] digits, the
+    /// sixth followed by a blank or the newline, in at most [`INT_LEN`]
+    /// bytes with that byte; `None` otherwise.
+    pub(super) fn learn(text: &[u8]) -> Option<Self> {
+        let mut digits_at = [0usize; N_INTS];
+        let mut n_digits = [0usize; N_INTS];
+        let mut signed = [false; N_INTS];
+        let mut i = 0;
+        for k in 0..N_INTS {
+            let start = i;
+            i = after_blanks(text, i);
+            if k > 0 && i == start {
+                return None;
+            }
+            signed[k] = matches!(text.get(i), Some(b'+' | b'-'));
+            i += usize::from(signed[k]);
+            digits_at[k] = i;
+            while text.get(i).is_some_and(u8::is_ascii_digit) {
+                i += 1;
+            }
+            n_digits[k] = i - digits_at[k];
+            if !(1..=MAX_INT_DIGITS).contains(&n_digits[k]) || digits_at[k] + 9 > INT_LEN {
+                return None;
+            }
+        }
+        if !text.get(i).is_some_and(|&c| is_blank(c) || c == b'\n') {
+            return None;
+        }
+        // The shape takes in the blank or newline after the sixth column,
+        // which ends it as a field.
+        Some(Self {
+            shape: Shape::of(&text[..=i])?,
+            digits_at,
+            n_digits,
+            signed,
+        })
+    }
+
+    /// The six integers of `text` and the length of its integer part (up
+    /// to the blank or newline after the sixth, which the shape also
+    /// covers) when `text` starts with this shape; `None` otherwise.
+    #[inline]
+    pub(super) fn read(&self, text: &[u8]) -> Option<([i32; N_INTS], usize)> {
+        let window = text.first_chunk::<INT_LEN>()?;
+        if !self.shape.matches_window(window) {
+            return None;
+        }
+        let mut v = [0i32; N_INTS];
+        for (k, out) in v.iter_mut().enumerate() {
+            // invariant: the shape puts `n_digits[k]` ≤ 9 digits at
+            // `digits_at[k]` ≤ INT_LEN − 9 (so the `min`s change nothing),
+            // and a sign before them when `signed[k]`
+            let o = self.digits_at[k].min(INT_LEN - MAX_INT_DIGITS);
+            let n = self.n_digits[k].min(MAX_INT_DIGITS);
+            let mut x: i32 = 0;
+            for &c in &window[o..o + n] {
+                x = x * 10 + i32::from(c - b'0');
+            }
+            *out = if self.signed[k] && window[o.saturating_sub(1)] == b'-' {
+                -x
+            } else {
+                x
+            };
+        }
+        Some((v, self.shape.len - 1))
+    }
+}
+
+/// Shape changes learned at most per chunk and kind: a file whose lines
+/// keep changing shape stops paying for learning and is read field by
+/// field.
 const MAX_LEARNED: u32 = 64;
 
-/// The shape of the latest particle line read field by field, for the
+/// Places in an event with an integer shape of their own; later particles
+/// share the last.
+const INT_PLACES: usize = 16;
+
+/// The shapes of the latest particle lines read field by field, for the
 /// lines of one chunk.
 #[derive(Debug, Default)]
 pub(super) struct ShapeMemo {
-    shape: Option<RealColumns>,
-    learned: u32,
+    reals: Option<RealColumns>,
+    ints: [Option<IntColumns>; INT_PLACES],
+    learned_reals: u32,
+    learned_ints: u32,
 }
 
 impl ShapeMemo {
     /// [`RealColumns::read`] by the remembered shape; `None` without one.
     #[inline]
-    pub(super) fn read(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
-        self.shape.as_ref()?.read(text)
+    pub(super) fn read_reals(&self, text: &[u8]) -> Option<([f64; N_REALS], usize)> {
+        self.reals.as_ref()?.read(text)
+    }
+
+    /// [`IntColumns::read`] by the shape remembered for particle `place`
+    /// (0-based) of an event; `None` without one.
+    #[inline]
+    pub(super) fn read_ints(&self, place: usize, text: &[u8]) -> Option<([i32; N_INTS], usize)> {
+        self.ints[place.min(INT_PLACES - 1)].as_ref()?.read(text)
     }
 
     /// Remembers the shape of `text`, the real part of a line that the
     /// field-by-field reader accepted and the remembered shape did not.
     #[inline(never)]
-    pub(super) fn learn(&mut self, text: &[u8]) {
-        if self.learned < MAX_LEARNED {
-            self.learned += 1;
+    pub(super) fn learn_reals(&mut self, text: &[u8]) {
+        if self.learned_reals < MAX_LEARNED {
+            self.learned_reals += 1;
             if let Some(s) = RealColumns::learn(text) {
-                self.shape = Some(s);
+                self.reals = Some(s);
+            }
+        }
+    }
+
+    /// Remembers the shape of the integer part at the start of `text`, a
+    /// particle line at `place` that the field-by-field reader accepted
+    /// and the remembered shape did not.
+    #[inline(never)]
+    pub(super) fn learn_ints(&mut self, place: usize, text: &[u8]) {
+        if self.learned_ints < MAX_LEARNED {
+            self.learned_ints += 1;
+            if let Some(s) = IntColumns::learn(text) {
+                self.ints[place.min(INT_PLACES - 1)] = Some(s);
             }
         }
     }
@@ -286,8 +427,8 @@ mod tests {
         padded.resize(text.len() + MAX_LEN, b'x');
         let fast = shape.read(&padded);
         assert_eq!(
-            shape.matches_bytewise(text),
-            shape.matches(&padded),
+            shape.shape.matches_bytewise(text),
+            shape.shape.matches(&padded),
             "the two comparisons disagree on {:?}",
             String::from_utf8_lossy(text)
         );
@@ -380,7 +521,7 @@ mod tests {
                 let same_kind = kind(byte) == kind(USUAL[place]);
                 let got = read_both(&shape, &text);
                 assert_eq!(
-                    shape.matches_bytewise(&text),
+                    shape.shape.matches_bytewise(&text),
                     same_kind,
                     "byte {byte:#04x} at place {place}: {}",
                     String::from_utf8_lossy(&text)
@@ -440,6 +581,105 @@ mod tests {
         let want = by_fields(wide).unwrap();
         for (a, b) in v.iter().zip(&want) {
             assert_eq!(a.to_bits(), b.to_bits());
+        }
+    }
+
+    /// The usual integer columns (`%9d%3d%5d%5d%5d%5d`) and the start of
+    /// the real columns after them.
+    const USUAL_INTS: &[u8] =
+        b"       21 -1    0    0  501  502 +0.0000000000e+00 +0.0000000000e+00 +1.5857467720e+03\n";
+
+    /// The first six fields by `str::parse` (the reference).
+    fn ints_by_fields(text: &[u8]) -> Option<[i32; N_INTS]> {
+        let line = std::str::from_utf8(text).ok()?;
+        let v: Vec<i32> = line
+            .split([' ', '\t', '\r', '\n'])
+            .filter(|f| !f.is_empty())
+            .take(N_INTS)
+            .map(|f| f.parse::<i32>().ok())
+            .collect::<Option<_>>()?;
+        v.try_into().ok()
+    }
+
+    #[test]
+    fn integer_columns_accept_any_byte_exactly_when_the_shape_holds() {
+        let shape = IntColumns::learn(USUAL_INTS).expect("the usual widths are learned");
+        let (v, len) = shape.read(USUAL_INTS).unwrap();
+        assert_eq!(Some(v), ints_by_fields(USUAL_INTS));
+        assert_eq!(&USUAL_INTS[len..len + 2], b" +");
+        // Kinds as in the real columns' test (no exponent letters here):
+        // digits, signs, and every other byte by itself; the blank that
+        // ends the sixth column belongs to the shape.
+        let kind = |c: u8| -> u16 {
+            if c.is_ascii_digit() {
+                0
+            } else if c == b'+' || c == b'-' {
+                1
+            } else {
+                3 + u16::from(c)
+            }
+        };
+        for place in 0..=len {
+            for byte in 0..=255u8 {
+                let mut text = USUAL_INTS.to_vec();
+                text[place] = byte;
+                let same_kind = kind(byte) == kind(USUAL_INTS[place]);
+                let got = shape.read(&text);
+                assert_eq!(
+                    shape.shape.matches_bytewise(&text),
+                    shape.shape.matches(&text),
+                    "the two comparisons disagree at {place}"
+                );
+                assert_eq!(
+                    got.is_some(),
+                    same_kind,
+                    "byte {byte:#04x} at place {place}"
+                );
+                if let Some((v, _)) = got {
+                    assert_eq!(
+                        Some(v),
+                        ints_by_fields(&text),
+                        "byte {byte:#04x} at {place}"
+                    );
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn integer_columns_of_other_widths_and_signs() {
+        for text in [
+            &b"1000022 1 -3 4 -501 +2 +1.0\n"[..],
+            b"\t-5\t1\t0\t0\t0\t0\n",
+            b"        1  1    1    2    0    0 x",
+            b"  999999999 -999999999 0 0 0 0 \n",
+        ] {
+            let shape = IntColumns::learn(text).expect("learned");
+            let mut padded = text.to_vec();
+            padded.resize(INT_LEN, b' ');
+            let (v, len) = shape.read(&padded).expect("read by its own shape");
+            assert_eq!(
+                Some(v),
+                ints_by_fields(text),
+                "{}",
+                String::from_utf8_lossy(text)
+            );
+            assert!(matches!(text[len], b' ' | b'\t' | b'\n'));
+        }
+        for text in [
+            // ten digits, no blank before a column, the sixth column not
+            // ended by a blank, five columns, a column too far in
+            &b"1234567890 1 0 0 0 0 \n"[..],
+            b"21 -1 0 0 501+502 +1.0\n",
+            b"21 -1 0 0 501 502+1.0\n",
+            b"21 -1 0 0 501\n",
+            b"                                       21 -1 0 0 501 502 +1\n",
+        ] {
+            assert!(
+                IntColumns::learn(text).is_none(),
+                "{}",
+                String::from_utf8_lossy(text)
+            );
         }
     }
 }
