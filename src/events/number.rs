@@ -40,7 +40,7 @@ pub fn parse_f64(s: &[u8]) -> Option<f64> {
 /// by the SWAR reduction of pairs, quads and octets (common practice;
 /// the well-known trick used by fast decimal parsers).
 #[inline]
-fn eight_digits(x: u64) -> u64 {
+pub(super) fn eight_digits(x: u64) -> u64 {
     let x = x.wrapping_sub(0x3030_3030_3030_3030);
     let x = (x.wrapping_mul(10)).wrapping_add(x >> 8);
     let lo = x & 0x0000_00FF_0000_00FF;

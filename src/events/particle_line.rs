@@ -15,7 +15,7 @@
 //! other shape goes on to the field-by-field reader, so both give the same
 //! result for every line.
 
-use super::number::{fixed_layout, fixed_value, is_blank};
+use super::number::{eight_digits, fixed_layout, fixed_value, is_blank};
 
 /// Number of real columns on a particle line.
 const N_REALS: usize = 7;
@@ -34,21 +34,23 @@ const MAX_LEN: usize = 10 * BLOCK;
 /// usual widths (`%9d%3d%5d%5d%5d%5d`, 32 bytes) and more.
 const INT_LEN: usize = 3 * BLOCK;
 
+/// Eight ASCII `0` bytes.
+const ASCII_ZEROS: u64 = 0x3030_3030_3030_3030;
+
 /// Most digits of an integer column read by shape: every such number fits
 /// an `i32` (longer ones are read field by field).
 const MAX_INT_DIGITS: usize = 9;
 
 /// The shape-defining form of a byte: every digit reads as `0`, the two
-/// signs as `+`, the two exponent letters as `e`; every other byte as
-/// itself. Two texts have the same canonical bytes exactly when they have
-/// their digits, signs, exponent letters and all other bytes at the same
-/// places.
+/// signs as `+`; every other byte as itself. Two texts have the same
+/// canonical bytes exactly when they have their digits, signs and all
+/// other bytes at the same places (a writer prints one exponent letter,
+/// `e` or `E`, so it stays part of the shape).
 #[inline]
 fn canonical(c: u8) -> u8 {
     match c {
         b'0'..=b'9' => b'0',
         b'-' => b'+',
-        b'E' => b'e',
         c => c,
     }
 }
@@ -124,18 +126,14 @@ impl<const N: usize> Shape<N> {
             _mm_set_epi64x, _mm_set1_epi8, _mm_sub_epi8,
         };
         const { assert!(N.is_multiple_of(BLOCK), "a shape is whole blocks") };
-        // invariant: every block below has exactly 16 bytes
         let load = |b: &[u8]| -> __m128i {
-            let lo = u64::from_le_bytes(b[..8].try_into().unwrap());
-            let hi = u64::from_le_bytes(b[8..].try_into().unwrap());
+            let (lo, hi) = words(b);
             _mm_set_epi64x(hi as i64, lo as i64)
         };
         let zero = _mm_set1_epi8(b'0' as i8);
         let nine = _mm_set1_epi8(9);
         let minus = _mm_set1_epi8(b'-' as i8);
         let minus_to_plus = _mm_set1_epi8((b'-' - b'+') as i8);
-        let upper_e = _mm_set1_epi8(b'E' as i8);
-        let lower_case_bit = _mm_set1_epi8((b'e' - b'E') as i8);
         let mut all = _mm_set1_epi8(-1);
         for k in 0..N / BLOCK {
             let at = k * BLOCK;
@@ -144,15 +142,31 @@ impl<const N: usize> Shape<N> {
             let d = _mm_sub_epi8(x, zero);
             let digit = _mm_cmpeq_epi8(_mm_max_epu8(d, nine), nine);
             let mut y = _mm_sub_epi8(x, _mm_and_si128(digit, d));
-            // '-' becomes '+', 'E' becomes 'e'.
+            // '-' becomes '+'.
             y = _mm_sub_epi8(y, _mm_and_si128(_mm_cmpeq_epi8(x, minus), minus_to_plus));
-            y = _mm_or_si128(y, _mm_and_si128(_mm_cmpeq_epi8(x, upper_e), lower_case_bit));
             let same = _mm_cmpeq_epi8(y, load(&self.canon[at..at + BLOCK]));
             let skip = load(&self.beyond[at..at + BLOCK]);
             all = _mm_and_si128(all, _mm_or_si128(same, skip));
         }
         _mm_movemask_epi8(all) == 0xFFFF
     }
+}
+
+/// The first 8-byte word of `b` (little-endian); `b` has at least 8
+/// bytes.
+#[inline(always)]
+fn word(b: &[u8]) -> u64 {
+    // invariant: callers pass at least 8 bytes
+    u64::from_le_bytes(*b.first_chunk().unwrap())
+}
+
+/// The first two 8-byte words of `b` (little-endian); `b` has at least
+/// 16 bytes.
+#[inline(always)]
+fn words(b: &[u8]) -> (u64, u64) {
+    // invariant: callers pass at least 16 bytes
+    let b: &[u8; 16] = b.first_chunk().unwrap();
+    (word(b), word(&b[8..]))
 }
 
 /// The index of the first byte at or after `i` that is not a blank.
@@ -224,8 +238,7 @@ impl RealColumns {
             // `at[k]`, its 16 bytes after the sign at `digits_at[k]` ≤
             // MAX_LEN − 16 (so the `min` changes nothing)
             let o = self.digits_at[k].min(MAX_LEN - 16);
-            let w0 = u64::from_le_bytes(window[o..o + 8].try_into().unwrap());
-            let w1 = u64::from_le_bytes(window[o + 8..o + 16].try_into().unwrap());
+            let (w0, w1) = words(&window[o..]);
             r[k] = fixed_value(window[self.at[k]], w0, w1)?;
         }
         Some((r, self.shape.len))
@@ -251,8 +264,11 @@ pub(super) struct IntColumns {
     shape: Shape<INT_LEN>,
     /// Per column: offset of the first digit; at most `INT_LEN − 9`.
     digits_at: [usize; N_INTS],
-    /// Per column: number of digits, 1 to [`MAX_INT_DIGITS`].
-    n_digits: [usize; N_INTS],
+    /// Per column: the left shift [bits] that puts the digits, at most
+    /// eight, at the top of an 8-byte word, 8·(8 − digits).
+    pad_shift: [u32; N_INTS],
+    /// Per column: true when it has a ninth digit, after the eight.
+    ninth: [bool; N_INTS],
     /// Per column: true when a sign byte precedes the digits.
     signed: [bool; N_INTS],
 }
@@ -292,7 +308,8 @@ impl IntColumns {
         Some(Self {
             shape: Shape::of(&text[..=i])?,
             digits_at,
-            n_digits,
+            pad_shift: n_digits.map(|n| 8 * (8 - n.min(8)) as u32),
+            ninth: n_digits.map(|n| n == 9),
             signed,
         })
     }
@@ -308,14 +325,17 @@ impl IntColumns {
         }
         let mut v = [0i32; N_INTS];
         for (k, out) in v.iter_mut().enumerate() {
-            // invariant: the shape puts `n_digits[k]` ≤ 9 digits at
-            // `digits_at[k]` ≤ INT_LEN − 9 (so the `min`s change nothing),
-            // and a sign before them when `signed[k]`
+            // invariant: the shape puts 1 to 9 digits at `digits_at[k]` ≤
+            // INT_LEN − 9 (so the `min` changes nothing), and a sign
+            // before them when `signed[k]`
             let o = self.digits_at[k].min(INT_LEN - MAX_INT_DIGITS);
-            let n = self.n_digits[k].min(MAX_INT_DIGITS);
-            let mut x: i32 = 0;
-            for &c in &window[o..o + n] {
-                x = x * 10 + i32::from(c - b'0');
+            // The first (up to) eight digits, shifted to the top of the
+            // word over ASCII zeros: the value of an 8-digit string.
+            let shift = self.pad_shift[k];
+            let zeros = ASCII_ZEROS & !(u64::MAX << shift);
+            let mut x = eight_digits((word(&window[o..]) << shift) | zeros) as i32;
+            if self.ninth[k] {
+                x = x * 10 + i32::from(window[o + 8].wrapping_sub(b'0'));
             }
             *out = if self.signed[k] && window[o.saturating_sub(1)] == b'-' {
                 -x
@@ -451,7 +471,7 @@ mod tests {
     #[test]
     fn other_values_of_the_same_shape_are_read_exactly() {
         let shape = RealColumns::learn(USUAL).unwrap();
-        // Every sign, both exponent letters, digits 0–9 at every place:
+        // Every sign, digits 0–9 at every place:
         // a deterministic walk over values (common practice: a linear
         // congruential generator, Knuth's MMIX constants).
         let mut state: u64 = 0x2545_f491_4f6c_dd1d;
@@ -468,7 +488,6 @@ mod tests {
                 for k in [1, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12] {
                     text[at + k] = b'0' + (next() % 10) as u8;
                 }
-                text[at + 13] = if next() % 2 == 0 { b'e' } else { b'E' };
                 text[at + 14] = if next() % 2 == 0 { b'+' } else { b'-' };
                 text[at + 15] = b'0' + (next() % 3) as u8;
                 text[at + 16] = b'0' + (next() % 10) as u8;
@@ -500,7 +519,7 @@ mod tests {
     fn any_byte_at_any_place_is_accepted_exactly_when_the_shape_holds() {
         // Each byte of the line replaced by each value: the shape must
         // accept exactly the lines whose bytes have the same kind at every
-        // place (digit, sign, exponent letter, or the same other byte), as
+        // place (digit, sign, or the same other byte), as
         // judged by this test's own per-byte rule.
         let shape = RealColumns::learn(USUAL).unwrap();
         let kind = |c: u8| -> u16 {
@@ -508,8 +527,6 @@ mod tests {
                 0
             } else if c == b'+' || c == b'-' {
                 1
-            } else if c == b'e' || c == b'E' {
-                2
             } else {
                 3 + u16::from(c)
             }
@@ -607,8 +624,8 @@ mod tests {
         let (v, len) = shape.read(USUAL_INTS).unwrap();
         assert_eq!(Some(v), ints_by_fields(USUAL_INTS));
         assert_eq!(&USUAL_INTS[len..len + 2], b" +");
-        // Kinds as in the real columns' test (no exponent letters here):
-        // digits, signs, and every other byte by itself; the blank that
+        // Kinds as in the real columns' test: digits, signs, and every
+        // other byte by itself; the blank that
         // ends the sixth column belongs to the shape.
         let kind = |c: u8| -> u16 {
             if c.is_ascii_digit() {
