@@ -36,6 +36,23 @@ pub fn parse_f64(s: &[u8]) -> Option<f64> {
     std::str::from_utf8(s).ok()?.parse::<f64>().ok()
 }
 
+/// The first 8 bytes of `b` as a little-endian word (first byte lowest);
+/// `b` has at least 8 bytes.
+#[inline(always)]
+pub(super) fn word(b: &[u8]) -> u64 {
+    // invariant: callers pass at least 8 bytes
+    u64::from_le_bytes(*b.first_chunk().unwrap())
+}
+
+/// The first two 8-byte words of `b` (see [`word`]); `b` has at least 16
+/// bytes.
+#[inline(always)]
+pub(super) fn words(b: &[u8]) -> (u64, u64) {
+    // invariant: callers pass at least 16 bytes
+    let b: &[u8; 16] = b.first_chunk().unwrap();
+    (word(b), word(&b[8..]))
+}
+
 /// Value of 8 ASCII digits (little-endian in `x`, first digit lowest),
 /// by the SWAR reduction of pairs, quads and octets (common practice;
 /// the well-known trick used by fast decimal parsers).
@@ -88,10 +105,7 @@ pub(super) fn fixed_layout(s: &[u8]) -> Option<(f64, usize)> {
     let first = *s.first()?;
     let signed = first == b'+' || first == b'-';
     let o = usize::from(signed);
-    let b = s.get(o..o + 16)?;
-    // invariant: both slices have exactly 8 bytes
-    let w0 = u64::from_le_bytes(b[..8].try_into().unwrap());
-    let w1 = u64::from_le_bytes(b[8..].try_into().unwrap());
+    let (w0, w1) = words(s.get(o..o + 16)?);
     // Digit positions: bytes 0 and 2–7 of word 0; 0–3, 6, 7 of word 1.
     const DIGITS_0: u64 = 0xFFFF_FFFF_FFFF_00FF;
     const DIGITS_1: u64 = 0xFFFF_0000_FFFF_FFFF;
@@ -173,8 +187,7 @@ fn leading_digits(x: u64) -> usize {
 fn digit_run(s: &[u8], i: &mut usize, mant: &mut u64, n_before: usize) -> Option<usize> {
     let start = *i;
     while let Some(w) = s.get(*i..*i + 8) {
-        // invariant: the slice has exactly 8 bytes
-        let x = u64::from_le_bytes(w.try_into().unwrap());
+        let x = word(w);
         let n = leading_digits(x);
         if n == 0 {
             return Some(*i - start);
@@ -310,8 +323,7 @@ impl<'a> Cursor<'a> {
         }
         loop {
             if let Some(w) = self.s.get(self.i..self.i + 8) {
-                // invariant: the slice has exactly 8 bytes
-                let y = u64::from_le_bytes(w.try_into().unwrap()) ^ 0x2020_2020_2020_2020;
+                let y = word(w) ^ 0x2020_2020_2020_2020;
                 // The spaces are the zero bytes of `y`.
                 self.i += first_nonzero_byte(y);
                 if y == 0 {
@@ -499,8 +511,7 @@ impl<'a> Iterator for Fields<'a> {
         // them); the lowest flagged byte is exact (the classic
         // "has a byte less than n" bit trick, common practice).
         while i + 8 <= r.len() {
-            // invariant: the slice has exactly 8 bytes
-            let x = u64::from_le_bytes(r[i..i + 8].try_into().unwrap());
+            let x = word(&r[i..]);
             let t = x.wrapping_sub(0x2121_2121_2121_2121) & !x & 0x8080_8080_8080_8080;
             if t == 0 {
                 i += 8;

@@ -9,7 +9,7 @@
 //! `<wgt id=…>` lines or a `<weights>` list.
 
 use super::init::{FileInfo, attribute, lossy as show, opens_tag};
-use super::number::{Cursor, fields, parse_f64, parse_i32, trim};
+use super::number::{Cursor, fields, parse_f64, parse_i32, trim, word};
 use super::particle_line::ShapeMemo;
 use super::{Event, Particle};
 use crate::kinematics::P4;
@@ -613,9 +613,8 @@ impl WeightTags {
 fn has_prefix(text: &[u8], prefix: &[u8]) -> bool {
     let n = prefix.len();
     if (8..=16).contains(&n) && text.len() >= n {
-        // invariant: every slice below has exactly 8 bytes within bounds
-        let word = |s: &[u8], at: usize| u64::from_le_bytes(s[at..at + 8].try_into().unwrap());
-        word(text, 0) == word(prefix, 0) && word(text, n - 8) == word(prefix, n - 8)
+        // Both have n ≥ 8 bytes, so both words exist at 0 and at n − 8.
+        word(text) == word(prefix) && word(&text[n - 8..]) == word(&prefix[n - 8..])
     } else {
         text.starts_with(prefix)
     }

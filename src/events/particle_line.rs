@@ -15,7 +15,7 @@
 //! other shape goes on to the field-by-field reader, so both give the same
 //! result for every line.
 
-use super::number::{eight_digits, fixed_layout, fixed_value, is_blank};
+use super::number::{eight_digits, fixed_layout, fixed_value, is_blank, word, words};
 
 /// Number of real columns on a particle line.
 const N_REALS: usize = 7;
@@ -150,23 +150,6 @@ impl<const N: usize> Shape<N> {
         }
         _mm_movemask_epi8(all) == 0xFFFF
     }
-}
-
-/// The first 8-byte word of `b` (little-endian); `b` has at least 8
-/// bytes.
-#[inline(always)]
-fn word(b: &[u8]) -> u64 {
-    // invariant: callers pass at least 8 bytes
-    u64::from_le_bytes(*b.first_chunk().unwrap())
-}
-
-/// The first two 8-byte words of `b` (little-endian); `b` has at least
-/// 16 bytes.
-#[inline(always)]
-fn words(b: &[u8]) -> (u64, u64) {
-    // invariant: callers pass at least 16 bytes
-    let b: &[u8; 16] = b.first_chunk().unwrap();
-    (word(b), word(&b[8..]))
 }
 
 /// The index of the first byte at or after `i` that is not a blank.
