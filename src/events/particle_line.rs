@@ -15,7 +15,7 @@
 //! other shape goes on to the field-by-field reader, so both give the same
 //! result for every line.
 
-use super::number::{eight_digits, fixed_layout, fixed_value, is_blank, word, words};
+use super::number::{eight_digits, fixed_layout, fixed_value_sse2, is_blank, word, words};
 
 /// Number of real columns on a particle line.
 const N_REALS: usize = 7;
@@ -222,7 +222,7 @@ impl RealColumns {
             // MAX_LEN − 16 (so the `min` changes nothing)
             let o = self.digits_at[k].min(MAX_LEN - 16);
             let (w0, w1) = words(&window[o..]);
-            r[k] = fixed_value(window[self.at[k]], w0, w1)?;
+            r[k] = fixed_value_sse2(window[self.at[k]], w0, w1)?;
         }
         Some((r, self.shape.len))
     }
