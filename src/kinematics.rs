@@ -62,8 +62,12 @@ impl P4 {
     }
 
     /// Transverse momentum pT = √(px² + py²) [GeV].
+    ///
+    /// The plain square root, as in [`Self::p`]: at collider scales the
+    /// squares neither overflow nor underflow, and `hypot`'s guard against
+    /// that costs several times a square root on every call.
     pub fn pt(&self) -> f64 {
-        self.px.hypot(self.py)
+        self.pt2().sqrt()
     }
 
     /// Squared transverse momentum pT² [GeV²].

@@ -45,7 +45,7 @@ impl TruthInfo {
             .map(|p| p.p4.pt())
             .fold(None, |m: Option<f64>, pt| Some(m.map_or(pt, |m| m.max(pt))));
         TruthInfo {
-            met_gev: x.hypot(y),
+            met_gev: (x * x + y * y).sqrt(),
             leading_parton_pt_gev,
         }
     }
