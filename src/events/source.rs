@@ -28,7 +28,12 @@ use std::sync::mpsc;
 
 /// Target size of a chunk of event text [bytes]. Chunk boundaries depend
 /// on this constant and the file content only.
-pub const BLOCK_BYTES: usize = 4 << 20;
+///
+/// 1 MiB: a chunk then stays in the cache between the reading thread's
+/// copy and the worker's parse (0.92× the wall time of 4 MiB blocks for a
+/// recast of 200 000 events on 2 cores, 15 alternating pairs); 256 KiB
+/// blocks were slower again (more chunks, each relearning line shapes).
+pub const BLOCK_BYTES: usize = 1 << 20;
 
 /// Largest span of text without a new event the reader accepts [bytes].
 pub const MAX_EVENT_BYTES: usize = 256 << 20;
