@@ -446,7 +446,7 @@ impl Detector {
             met[1] += sigma * gy;
         }
         out.met_xy_gev = met;
-        out.met_gev = (met[0] * met[0] + met[1] * met[1]).sqrt();
+        out.met_gev = crate::kinematics::transverse_magnitude(met);
         out.sum_et_gev = sum_et;
     }
 }

@@ -135,8 +135,10 @@ impl CensusChunk {
                     lead = Some(lead.map_or(pt, |l| l.max(pt)));
                 }
             }
-            let [x, y] = truth_met_xy(ev, invisible);
-            c.met.fill(x.hypot(y));
+            c.met
+                .fill(crate::kinematics::transverse_magnitude(truth_met_xy(
+                    ev, invisible,
+                )));
             if let Some(pt) = lead {
                 c.lead_parton_pt.fill(pt);
             }

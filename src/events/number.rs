@@ -187,7 +187,8 @@ fn fixed_digits(w0: u64, w1: u64) -> (u64, i32) {
     (mant, exp)
 }
 
-/// [`fixed_digits`] with SSE2 (part of every x86-64 processor): the
+/// [`fixed_digits`] with SSE2 (part of every x86-64 processor), by the
+/// multiply-add reduction of SIMD decimal parsers (common practice): the
 /// sixteen bytes `d.dddddd` `dddde±dd` are widened to 16-bit digits and
 /// combined by three multiply-add steps (pairs, then groups of three or
 /// four digits, then seven), with weight 0 on the point, the `e` and the

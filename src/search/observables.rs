@@ -113,8 +113,7 @@ impl Attribute {
 
     fn of(self, p: &P4) -> f64 {
         match self {
-            // √(px² + py²) without hypot's overflow guard (GeV scales).
-            Attribute::Pt => p.pt2().sqrt(),
+            Attribute::Pt => p.pt(),
             Attribute::Eta => p.eta(),
             Attribute::AbsEta => p.abs_eta(),
             Attribute::Phi => p.phi(),

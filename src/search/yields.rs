@@ -37,7 +37,7 @@ pub struct TruthInfo {
 impl TruthInfo {
     /// Truth quantities of `event` for the invisible set `invisible`.
     pub fn from_event(event: &Event, invisible: &InvisibleSet) -> TruthInfo {
-        let [x, y] = crate::events::truth_met_xy(event, invisible);
+        let met_xy = crate::events::truth_met_xy(event, invisible);
         let leading_parton_pt_gev = event
             .particles
             .iter()
@@ -45,7 +45,7 @@ impl TruthInfo {
             .map(|p| p.p4.pt())
             .fold(None, |m: Option<f64>, pt| Some(m.map_or(pt, |m| m.max(pt))));
         TruthInfo {
-            met_gev: (x * x + y * y).sqrt(),
+            met_gev: crate::kinematics::transverse_magnitude(met_xy),
             leading_parton_pt_gev,
         }
     }
