@@ -419,30 +419,69 @@ fn identical_on_one_and_many_threads() {
 }
 
 // gzip detected by magic bytes (RFC 1952), whatever the name, including a
-// multi-member file made of two gzip streams one after the other.
+// multi-member file made of two gzip streams one after the other. Plain
+// files are read through memory maps and gzip files by copying: both cut
+// the same chunks (first event index and events per chunk) over several
+// blocks.
 #[test]
 fn gzip_and_multi_member_gzip_read_like_plain() {
     let dir = tempfile::tempdir().expect("temp dir");
     let text = lhef_string(&Spec {
-        n_events: 3_000,
+        n_events: 9_000,
         weight_names: names(3),
         ..Default::default()
     });
+    assert!(text.len() > 2 * recoil::events::BLOCK_BYTES);
     let plain = write(dir.path(), "p.lhe", text.as_bytes());
     let gz = write(dir.path(), "no-suffix.lhe", &gzip(text.as_bytes()));
     let (a, b) = text.as_bytes().split_at(text.len() / 3);
     let mut multi = gzip(a);
     multi.extend(gzip(b));
     let mm = write(dir.path(), "multi.lhe.gz", &multi);
-    let want: Vec<Vec<u64>> = events_of(&[plain]).iter().map(bits).collect();
-    for p in [gz, mm] {
-        let got: Vec<Vec<u64>> = events_of(&[p]).iter().map(bits).collect();
-        assert_eq!(got, want);
-    }
+    assert_same_chunks(&plain, &[gz, mm]);
     let src = EventSource::open(&[dir.path().join("no-suffix.lhe")], ReadOptions::default())
         .expect("open");
     assert!(src.info().files[0].gzip);
     assert_eq!(src.info().weight_names, names(3));
+}
+
+/// Asserts that every file of `others` gives the chunks (context, number of
+/// events, bits of every event) of `reference`.
+fn assert_same_chunks(reference: &Path, others: &[PathBuf]) {
+    let chunks = |p: &Path| -> Vec<(ChunkContext, Vec<Vec<u64>>)> {
+        let (chunks, _) = read_all(&[p.to_path_buf()], ReadOptions::default()).expect("valid");
+        chunks
+            .into_iter()
+            .map(|(ctx, evs)| (ctx, evs.iter().map(bits).collect()))
+            .collect()
+    };
+    let want = chunks(reference);
+    assert!(want.len() > 1, "{} chunks", want.len());
+    for p in others {
+        assert_eq!(chunks(p), want, "{}", p.display());
+    }
+}
+
+// An event longer than a block (optional information of 1.5 MiB): the
+// block grows until an event tag follows, for plain and gzip files alike.
+#[test]
+fn event_longer_than_a_block_reads_like_gzip() {
+    let t = lhef_string(&Spec {
+        n_events: 6_000,
+        ..Default::default()
+    });
+    // Before the end tag of the first event, which starts the first block.
+    let end = line_of(&t, 0, "</event>");
+    let filler = "# filler line of the optional information\n".repeat(40_000);
+    assert!(filler.len() > recoil::events::BLOCK_BYTES * 3 / 2);
+    let mut lines: Vec<String> = t.lines().map(|l| format!("{l}\n")).collect();
+    lines.insert(end - 1, filler);
+    let t: String = lines.concat();
+    let dir = tempfile::tempdir().expect("temp dir");
+    let plain = write(dir.path(), "long.lhe", t.as_bytes());
+    let gz = write(dir.path(), "long.lhe.gz", &gzip(t.as_bytes()));
+    assert_same_chunks(&plain, &[gz]);
+    assert_eq!(events_of(&[plain]).len(), 6_000);
 }
 
 // Header information: beams, √s = 2√(E₁E₂) = 13600 GeV for 6800 GeV beams
@@ -957,6 +996,51 @@ fn generator_is_deterministic() {
     let mut v = Vec::new();
     write_lhef(&spec, &mut v).expect("write");
     assert_eq!(v, lhef_string(&spec).into_bytes());
+}
+
+// Chunks are cut before every line that opens an event tag, so a comment
+// between events must not hold one: in the middle of a chunk and where
+// the chunk is cut before it (the tag inside the comment is the last one
+// of the first block), the error names the tag's line and the comment's.
+#[test]
+fn error_event_tag_inside_a_comment() {
+    let t = base_text();
+    let second = line_of(&t, line_of(&t, 0, "<event>"), "<event>");
+    let mut lines: Vec<String> = t.lines().map(|l| format!("{l}\n")).collect();
+    lines.insert(second - 1, "<!-- a note\n  <event>\n-->\n".into());
+    let e = err_of(lines.concat().as_bytes());
+    assert!(
+        e.contains(&format!(
+            "line {}: an <event> tag inside the comment opened on line {second}",
+            second + 1
+        )),
+        "{e}"
+    );
+
+    let t = lhef_string(&Spec {
+        n_events: 9_000,
+        ..Default::default()
+    });
+    let body = t.find("</init>\n").expect("init end") + "</init>\n".len();
+    let block_end = body + recoil::events::BLOCK_BYTES;
+    // The last event that starts well before the block's end.
+    let at = t[..block_end - 4_000].rfind("<event>\n").expect("an event");
+    let pad = block_end - 100 - at - "<!--\n".len();
+    let comment = format!(
+        "<!--\n{}\n<event>\n{}-->\n",
+        "x".repeat(pad - 1),
+        "y\n".repeat(500)
+    );
+    let t = format!("{}{comment}{}", &t[..at], &t[at..]);
+    let opened = t[..at].lines().count() + 1;
+    let e = err_of(t.as_bytes());
+    assert!(
+        e.contains(&format!(
+            "line {}: an <event> tag inside the comment opened on line {opened}",
+            opened + 2
+        )),
+        "{e}"
+    );
 }
 
 // Event and line numbers stay right in a later chunk of a large file (the

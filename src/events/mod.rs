@@ -166,6 +166,7 @@ mod census;
 mod error;
 mod gzip;
 mod init;
+mod mapped;
 mod number;
 mod parse;
 mod particle_line;

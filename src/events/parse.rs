@@ -112,6 +112,7 @@ pub(crate) fn parse_chunk(
     };
     let mut event_no = place.first_event;
     let mut in_comment = false;
+    let mut comment_line = 0;
     let tags = WeightTags::new(file);
     let mut shapes = ShapeMemo::default();
     while let Some(raw) = lines.next_line() {
@@ -120,6 +121,11 @@ pub(crate) fn parse_chunk(
             continue;
         }
         if in_comment {
+            // Chunks are cut before every such line, so a comment must
+            // not hold one.
+            if is_event_tag_line(raw) {
+                return Err(event_tag_in_comment(lines.line, comment_line));
+            }
             if memchr::memmem::find(line, b"-->").is_some() {
                 in_comment = false;
             }
@@ -145,6 +151,7 @@ pub(crate) fn parse_chunk(
             out.end_tag = true;
         } else if line.starts_with(b"<!--") {
             in_comment = memchr::memmem::find(line, b"-->").is_none();
+            comment_line = lines.line;
         } else {
             return Err(BodyFault {
                 event: None,
@@ -155,6 +162,10 @@ pub(crate) fn parse_chunk(
                 ),
             });
         }
+    }
+    if in_comment && !place.last {
+        // The chunk was cut before an event tag line inside the comment.
+        return Err(event_tag_in_comment(lines.line + 1, comment_line));
     }
     out.events.truncate(n_events);
     out.n_lines = lines.line + 1 - place.first_line;
@@ -168,6 +179,28 @@ pub(crate) fn parse_chunk(
         });
     }
     Ok(out)
+}
+
+/// True when `line` (without its newline) opens an event by the rule the
+/// chunks are cut by: only blanks before `<event`, and `>`, a blank, `\r`
+/// or `/` after it.
+pub(crate) fn is_event_tag_line(line: &[u8]) -> bool {
+    let start = line
+        .iter()
+        .position(|&b| b != b' ' && b != b'\t')
+        .unwrap_or(line.len());
+    let tag = &line[start..];
+    tag.starts_with(b"<event") && matches!(tag.get(6), Some(b'>' | b' ' | b'\t' | b'\r' | b'/'))
+}
+
+fn event_tag_in_comment(line: u64, comment_line: u64) -> BodyFault {
+    BodyFault {
+        event: None,
+        line,
+        rule: format!(
+            "an <event> tag inside the comment opened on line {comment_line} (close the comment with --> before it)"
+        ),
+    }
 }
 
 fn add_sums(sums: &mut Vec<ProcessSums>, ev: &Event) {

@@ -5,26 +5,33 @@
 //! through [`EventSource::for_each_chunk`].
 //!
 //! How the pass works: a reading thread of its own, outside the rayon pool,
-//! reads each file (gzip files are decompressed on a further thread) in
-//! blocks of [`BLOCK_BYTES`],
-//! cuts each block just before the line of its last `<event>` tag (a
-//! position that depends only on the file content, never on the number of
-//! threads), counts the events and lines of the chunk, and hands the chunk
-//! to the rayon pool, where it is parsed and mapped. Results come back out
-//! of order and are consumed strictly in order on the calling thread; at
-//! most a fixed window of chunks is in flight, so memory does not grow with
-//! the file size.
+//! takes each file in blocks of [`BLOCK_BYTES`] (a plain file as a
+//! memory-mapped window per block, see [`super::mapped`]; a gzip file or a
+//! pipe read into memory, gzip decompressed on a further thread), cuts each
+//! block just before the line of its last `<event>` tag (a position that
+//! depends only on the file content, never on the number of threads), and
+//! hands the chunk to the rayon pool, where it is parsed. A chunk is mapped
+//! (detector, selection, …) once the first event index of the chunk within
+//! its file is known, that is, once every earlier chunk has been parsed
+//! ([`EventBases`]); a chunk parsed before then is mapped by the worker that
+//! parses the last of the earlier ones, so no worker waits. Results come
+//! back out of order and are consumed strictly in order on the calling
+//! thread; at most a fixed window of chunks is in flight, so memory does not
+//! grow with the file size.
 
 use super::error::EventError;
 use super::gzip::{Input, fill, fill_into, open_input};
 use super::init::{FileInfo, HeaderFault, find_init_end, parse_head};
-use super::parse::{BodyFault, ChunkPlace, ParsedChunk, ProcessSums, parse_chunk};
+use super::mapped::MappedFile;
+use super::parse::{
+    BodyFault, ChunkPlace, ParsedChunk, ProcessSums, is_event_tag_line, parse_chunk,
+};
 use super::weights::{SampleSummary, summarize};
 use super::{ChunkContext, Event, FileCombination, ReadOptions};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicUsize, Ordering};
-use std::sync::mpsc;
+use std::sync::{Mutex, mpsc};
 
 /// Target size of a chunk of event text [bytes]. Chunk boundaries depend
 /// on this constant and the file content only.
@@ -74,6 +81,34 @@ fn io_err(path: &Path, input: Option<&Input>, offset: u64, e: std::io::Error) ->
         EventError::Io {
             path: path.to_path_buf(),
             source: e,
+        }
+    }
+}
+
+/// No event tag in the longest span of text the reader accepts, from byte
+/// `offset` of the (decompressed) text on.
+fn no_event_within(path: &Path, offset: u64) -> EventError {
+    EventError::Sample {
+        path: path.to_path_buf(),
+        rule: format!(
+            "no <event> tag starts a line within {} MiB after byte {offset} of the text",
+            MAX_EVENT_BYTES >> 20
+        ),
+    }
+}
+
+/// The text of a chunk: a block read into memory (gzip files, pipes), or a
+/// memory-mapped window of a plain file.
+enum ChunkText {
+    Read(Vec<u8>),
+    Mapped(memmap2::Mmap),
+}
+
+impl ChunkText {
+    fn bytes(&self) -> &[u8] {
+        match self {
+            ChunkText::Read(b) => b,
+            ChunkText::Mapped(m) => m,
         }
     }
 }
@@ -191,11 +226,16 @@ impl EventSource {
         let first_failure = AtomicUsize::new(usize::MAX);
         let mut sums: Vec<Vec<ProcessSums>> = vec![Vec::new(); info.files.len()];
 
-        // A failed chunk reports its file and the fault with a line number
-        // counted from the chunk's first line; the consumer, which knows
-        // the lines of all earlier chunks, makes it a file line number.
-        type Out<T> = Result<(T, ParsedChunkMeta), (usize, BodyFault)>;
+        // A chunk is parsed without knowing where in its file it starts; a
+        // failed chunk comes back with its text, and the consumer, which
+        // knows the lines and events of all earlier chunks, parses it again
+        // at its place in the file to name the file's line and event.
+        type Out<T> = Result<(T, ParsedChunkMeta), ChunkFailure>;
         let mut line_base: Vec<u64> = info.files.iter().map(|f| f.body_line).collect();
+        let mut event_base: Vec<u64> = vec![0; info.files.len()];
+        // First event indices of parsed chunks, and parsed chunks waiting
+        // for theirs.
+        let bases: Mutex<EventBases<(usize, ParsedChunk)>> = Mutex::new(EventBases::default());
         let mut done_bytes: u64 = 0;
         let result: Result<(), EventError> = rayon::in_place_scope(|scope| {
             let (tx, rx) = mpsc::channel::<(usize, Out<T>)>();
@@ -222,19 +262,21 @@ impl EventSource {
                     *consumed += 1;
                     let (value, meta) = match out {
                         Ok(x) => x,
-                        Err((fi, f)) => {
+                        Err(failure) => {
+                            let fi = failure.file_index;
                             let path = info.files[fi].path.clone();
-                            let line = line_base[fi] + f.line - 1;
+                            let f =
+                                failure.at_place(&info.files[fi], line_base[fi], event_base[fi]);
                             return Err(match f.event {
                                 Some(event) => EventError::Event {
                                     path,
                                     event,
-                                    line,
+                                    line: f.line,
                                     rule: f.rule,
                                 },
                                 None => EventError::Body {
                                     path,
-                                    line,
+                                    line: f.line,
                                     rule: f.rule,
                                 },
                             });
@@ -251,6 +293,7 @@ impl EventSource {
                         });
                     }
                     line_base[meta.file_index] += meta.n_lines;
+                    event_base[meta.file_index] += meta.n_events;
                     if meta.end_tag {
                         after_end_tag =
                             Some((meta.file_index, info.files[meta.file_index].path.clone()));
@@ -268,11 +311,146 @@ impl EventSource {
             // issued before it still count).
             let first_failure = &first_failure;
             let map = &map;
+            let bases = &bases;
             let run = move || -> Result<u64, EventError> {
                 let mut issued = 0usize;
                 let mut done_bytes: u64 = 0;
+                // Hands the chunk `text[..cut]` of file `file_index` to the
+                // pool; false when the consumer has stopped.
+                let mut issue = |text: ChunkText,
+                                 cut: usize,
+                                 eof: bool,
+                                 file_index: usize,
+                                 starts_file: bool|
+                 -> bool {
+                    let file = &info.files[file_index];
+                    if slot_tx.send(()).is_err() {
+                        return false;
+                    }
+                    let seq = issued;
+                    issued += 1;
+                    let spare = spare_rx.try_recv().unwrap_or_default();
+                    let tx = tx.clone();
+                    let recycled_tx = recycled_tx.clone();
+                    let spare_tx = spare_tx.clone();
+                    scope.spawn(move |_| {
+                        if seq > first_failure.load(Ordering::Relaxed) {
+                            let skipped = BodyFault {
+                                event: None,
+                                line: 1,
+                                rule: "skipped after an earlier error".into(),
+                            };
+                            let failure = ChunkFailure {
+                                file_index,
+                                fault: skipped,
+                                text: None,
+                            };
+                            let _ = tx.send((seq, Err(failure)));
+                            return;
+                        }
+                        // Line and event numbers from the chunk's start; the
+                        // consumer places a fault in the file.
+                        let place = ChunkPlace {
+                            first_line: 1,
+                            first_event: 0,
+                            last: eof,
+                        };
+                        let parsed = match parse_chunk(&text.bytes()[..cut], file, &place, spare) {
+                            Ok(parsed) => parsed,
+                            Err(fault) => {
+                                first_failure.fetch_min(seq, Ordering::Relaxed);
+                                let failure = ChunkFailure {
+                                    file_index,
+                                    fault,
+                                    text: Some((text, cut, eof)),
+                                };
+                                let _ = tx.send((seq, Err(failure)));
+                                return;
+                            }
+                        };
+                        // The events are owned: a read block is reused now, a
+                        // mapped window unmapped.
+                        if let ChunkText::Read(buf) = text {
+                            let _ = recycled_tx.send(buf);
+                        }
+                        let n_events = parsed.events.len() as u64;
+                        // Map this chunk, when every earlier chunk of its file
+                        // has been parsed, and the later chunks that waited
+                        // for it; otherwise leave it to the worker that
+                        // parses the last earlier chunk.
+                        let ready = bases
+                            .lock()
+                            .unwrap_or_else(std::sync::PoisonError::into_inner)
+                            .parsed(seq, starts_file, n_events, (file_index, parsed));
+                        for (seq, first_event_index, (file_index, parsed)) in ready {
+                            let ctx = ChunkContext {
+                                file_index,
+                                first_event_index,
+                            };
+                            let value = map(&ctx, &parsed.events);
+                            let meta = ParsedChunkMeta {
+                                file_index,
+                                n_lines: parsed.n_lines,
+                                n_events: parsed.events.len() as u64,
+                                end_tag: parsed.end_tag,
+                                sums: parsed.sums,
+                            };
+                            let _ = spare_tx.send(parsed.events);
+                            let _ = tx.send((seq, Ok((value, meta))));
+                        }
+                    });
+                    true
+                };
                 for (file_index, file) in info.files.iter().enumerate() {
                     let path = &file.path;
+                    let mut starts_file = true;
+                    // Plain files: one memory-mapped window per chunk.
+                    let mapped = MappedFile::open(path)
+                        .map_err(|e| io_err(path, None, 0, e))?
+                        .filter(|m| m.len >= file.body_offset);
+                    if let Some(m) = mapped {
+                        // The same cuts as the reading loop below: each
+                        // window starts at the previous cut and holds at
+                        // least `BLOCK_BYTES` and one byte more than the
+                        // text already looked at beyond that cut.
+                        let mut pos = file.body_offset;
+                        let mut seen_end = pos;
+                        let mut eof = false;
+                        while !eof {
+                            let mut want = BLOCK_BYTES.max((seen_end - pos) as usize + 1);
+                            let (window, cut) = loop {
+                                let left = m.len - pos;
+                                eof = left < want as u64;
+                                let filled = if eof { left as usize } else { want };
+                                let window = m
+                                    .window(pos, filled)
+                                    .map_err(|e| io_err(path, None, pos, e))?;
+                                seen_end = pos + filled as u64;
+                                if eof {
+                                    break (window, filled);
+                                }
+                                match last_event_start(&window) {
+                                    Some(c) if c > 0 => break (window, c),
+                                    _ if filled >= MAX_EVENT_BYTES => {
+                                        return Err(no_event_within(path, pos));
+                                    }
+                                    _ => want = filled * 2,
+                                }
+                            };
+                            pos += cut as u64;
+                            let text = ChunkText::Mapped(window);
+                            if !issue(text, cut, eof, file_index, std::mem::take(&mut starts_file))
+                            {
+                                return Ok(done_bytes);
+                            }
+                            if let Some(p) = progress {
+                                p(done_bytes + pos);
+                            }
+                        }
+                        done_bytes += m.len;
+                        continue;
+                    }
+                    // Gzip files, pipes and devices: blocks read into memory.
                     let mut input = open_input(path).map_err(|e| io_err(path, None, 0, e))?;
                     // Skip the header.
                     let mut skip = Vec::new();
@@ -287,7 +465,6 @@ impl EventSource {
                     }
                     drop(skip);
                     let mut text_offset = file.body_offset;
-                    let mut first_event: u64 = 0;
                     let mut carry: Vec<u8> = Vec::new();
                     let mut eof = false;
                     while !eof {
@@ -295,7 +472,6 @@ impl EventSource {
                         // memory is already initialised, so reading into it
                         // costs no clearing and no allocation.
                         let mut buf = recycled_rx.try_recv().unwrap_or_default();
-                        let spare = spare_rx.try_recv().unwrap_or_default();
                         if buf.len() < carry.len() {
                             buf.resize(carry.len(), 0);
                         }
@@ -313,70 +489,18 @@ impl EventSource {
                             match last_event_start(&buf[..filled]) {
                                 Some(c) if c > 0 => break c,
                                 _ if filled >= MAX_EVENT_BYTES => {
-                                    return Err(EventError::Sample {
-                                        path: path.clone(),
-                                        rule: format!(
-                                            "no <event> tag starts a line within {} MiB after byte {text_offset} of the text",
-                                            MAX_EVENT_BYTES >> 20
-                                        ),
-                                    });
+                                    return Err(no_event_within(path, text_offset));
                                 }
                                 _ => want = filled * 2,
                             }
                         };
                         carry.clear();
                         carry.extend_from_slice(&buf[cut..filled]);
-                        let n_events = count_event_starts(&buf[..cut]);
-                        let place = ChunkPlace {
-                            first_line: 1,
-                            first_event,
-                            last: eof,
-                        };
-                        let ctx = ChunkContext {
-                            file_index,
-                            first_event_index: first_event,
-                        };
                         text_offset += cut as u64;
-                        first_event += n_events;
-                        if slot_tx.send(()).is_err() {
+                        let text = ChunkText::Read(buf);
+                        if !issue(text, cut, eof, file_index, std::mem::take(&mut starts_file)) {
                             return Ok(done_bytes);
                         }
-                        let seq = issued;
-                        issued += 1;
-                        let tx = tx.clone();
-                        let recycled_tx = recycled_tx.clone();
-                        let spare_tx = spare_tx.clone();
-                        scope.spawn(move |_| {
-                            if seq > first_failure.load(Ordering::Relaxed) {
-                                let skipped = BodyFault {
-                                    event: None,
-                                    line: 1,
-                                    rule: "skipped after an earlier error".into(),
-                                };
-                                let _ = tx.send((seq, Err((file_index, skipped))));
-                                return;
-                            }
-                            let out = parse_chunk(&buf[..cut], file, &place, spare)
-                                .and_then(|parsed| check_count(parsed, n_events))
-                                .map(|parsed| {
-                                    let value = map(&ctx, &parsed.events);
-                                    let meta = ParsedChunkMeta {
-                                        file_index,
-                                        n_lines: parsed.n_lines,
-                                        n_events: parsed.events.len() as u64,
-                                        end_tag: parsed.end_tag,
-                                        sums: parsed.sums,
-                                    };
-                                    let _ = spare_tx.send(parsed.events);
-                                    (value, meta)
-                                })
-                                .map_err(|f| (file_index, f));
-                            let _ = recycled_tx.send(buf);
-                            if out.is_err() {
-                                first_failure.fetch_min(seq, Ordering::Relaxed);
-                            }
-                            let _ = tx.send((seq, out));
-                        });
                         if let Some(p) = progress {
                             p(done_bytes + input.disk_bytes.load(Ordering::Relaxed));
                         }
@@ -465,19 +589,88 @@ struct ParsedChunkMeta {
     sums: Vec<ProcessSums>,
 }
 
-fn check_count(parsed: ParsedChunk, n_counted: u64) -> Result<ParsedChunk, BodyFault> {
-    if parsed.events.len() as u64 == n_counted {
-        Ok(parsed)
-    } else {
-        Err(BodyFault {
-            event: None,
-            line: 1,
-            rule: format!(
-                "an <event> tag sits inside another block (found {} event tags, parsed {} events)",
-                n_counted,
-                parsed.events.len()
-            ),
-        })
+/// A chunk that failed: its file, the fault with line and event numbers
+/// counted from the chunk's start, and, when it was parsed, its text, the
+/// length of the chunk and whether it is the file's last chunk.
+struct ChunkFailure {
+    file_index: usize,
+    fault: BodyFault,
+    text: Option<(ChunkText, usize, bool)>,
+}
+
+impl ChunkFailure {
+    /// The fault placed in the file, for a chunk whose first line is line
+    /// `first_line` of the file and whose first event is the file's event
+    /// `first_event` (0-based): the chunk is parsed again there, so that
+    /// every line and event number in the fault, its message included, is
+    /// the file's.
+    fn at_place(self, file: &FileInfo, first_line: u64, first_event: u64) -> BodyFault {
+        let place_fault = |f: BodyFault| BodyFault {
+            event: f.event.map(|e| first_event + e),
+            line: first_line + f.line - 1,
+            rule: f.rule,
+        };
+        let Some((text, cut, last)) = self.text else {
+            return place_fault(self.fault);
+        };
+        let place = ChunkPlace {
+            first_line,
+            first_event,
+            last,
+        };
+        match parse_chunk(&text.bytes()[..cut], file, &place, Vec::new()) {
+            Err(fault) => fault,
+            // Parsing is deterministic; this keeps the first fault if not.
+            Ok(_) => place_fault(self.fault),
+        }
+    }
+}
+
+/// First event indices of chunks within their files, learnt as chunks are
+/// parsed in any order: chunk k's index is known once chunks 0…k−1 have
+/// been parsed (the sum of the events of the earlier chunks of its file).
+/// A chunk parsed before that waits here with its payload `W`.
+#[derive(Debug)]
+struct EventBases<W> {
+    /// Chunks before this sequence number have known indices.
+    known: usize,
+    /// Index of the first event of chunk `known` unless it starts a file.
+    next: u64,
+    /// Parsed chunks from `known` on: starts its file, number of events,
+    /// payload.
+    waiting: BTreeMap<usize, (bool, u64, W)>,
+}
+
+impl<W> Default for EventBases<W> {
+    fn default() -> Self {
+        Self {
+            known: 0,
+            next: 0,
+            waiting: BTreeMap::new(),
+        }
+    }
+}
+
+impl<W> EventBases<W> {
+    /// Records chunk `seq` as parsed, with `n_events` events; returns the
+    /// chunks whose first event index is now known, in order, with that
+    /// index: `payload` itself first when chunk `seq` is among them.
+    fn parsed(
+        &mut self,
+        seq: usize,
+        starts_file: bool,
+        n_events: u64,
+        payload: W,
+    ) -> Vec<(usize, u64, W)> {
+        self.waiting.insert(seq, (starts_file, n_events, payload));
+        let mut ready = Vec::new();
+        while let Some((starts_file, n, w)) = self.waiting.remove(&self.known) {
+            let first = if starts_file { 0 } else { self.next };
+            ready.push((self.known, first, w));
+            self.next = first + n;
+            self.known += 1;
+        }
+        ready
     }
 }
 
@@ -495,60 +688,49 @@ fn merge_sums(into: &mut Vec<ProcessSums>, from: &[ProcessSums]) {
     }
 }
 
-/// True when the `<event` at `pos` opens an event tag at the start of a line
-/// (only blanks before it) and is followed by `>` or a blank.
-#[inline]
-fn is_event_start(buf: &[u8], pos: usize) -> Option<usize> {
-    let after = buf.get(pos + 6).copied();
-    if !matches!(after, Some(b'>' | b' ' | b'\t' | b'\r' | b'/')) {
-        return None;
-    }
-    let mut i = pos;
-    while i > 0 {
-        match buf[i - 1] {
-            b' ' | b'\t' => i -= 1,
-            b'\n' => return Some(i),
-            _ => return None,
-        }
-    }
-    Some(0)
-}
-
-/// Byte offset of the start of the line holding the last event tag.
+/// Byte offset of the start of the line holding the last event tag (by
+/// the rule of [`is_event_tag_line`]).
 fn last_event_start(buf: &[u8]) -> Option<usize> {
-    memchr::memmem::rfind_iter(buf, b"<event").find_map(|pos| is_event_start(buf, pos))
-}
-
-/// Number of event tags at line starts in `buf`.
-///
-/// Scans for the byte `v`, which is rare in event bodies (it occurs in
-/// `<event` and `</event>`, not in numbers or `<wgt>` lines), and checks
-/// the bytes around each hit; a substring search for `<event` is slower
-/// here because its candidate bytes (`<`, `e`) are on nearly every line.
-fn count_event_starts(buf: &[u8]) -> u64 {
-    memchr::memchr_iter(b'v', buf)
-        .filter(|&v| {
-            v >= 2
-                && buf.get(v - 2..v + 4) == Some(&b"<event"[..])
-                && is_event_start(buf, v - 2).is_some()
-        })
-        .count() as u64
+    memchr::memmem::rfind_iter(buf, b"<event").find_map(|pos| {
+        let start = memchr::memrchr(b'\n', &buf[..pos]).map_or(0, |i| i + 1);
+        is_event_tag_line(&buf[start..]).then_some(start)
+    })
 }
 
 #[cfg(test)]
 mod tests {
-    use super::{count_event_starts, last_event_start};
+    use super::{EventBases, is_event_tag_line, last_event_start};
 
     // Expected counts by hand (common practice, no source): an event tag
     // counts when only blanks precede it on its line and `>`, a blank,
     // `\r` or `/` follows `<event`.
     #[test]
-    fn event_tags_are_counted_at_line_starts_only() {
+    fn event_tags_are_found_at_line_starts_only() {
         let text = b"<event>\n  <event x='1'>\n<events>\nfoo <event>\n</event>\n\t<event/>\n<event\r\nv<event>\n<eventv";
-        assert_eq!(count_event_starts(text), 4);
-        assert_eq!(count_event_starts(b""), 0);
-        assert_eq!(count_event_starts(b"v"), 0);
-        assert_eq!(count_event_starts(b"<event"), 0);
+        let lines = |t: &[u8]| {
+            t.split(|&b| b == b'\n')
+                .filter(|l| is_event_tag_line(l))
+                .count()
+        };
+        assert_eq!(lines(text), 4);
+        assert_eq!(lines(b""), 0);
+        assert_eq!(lines(b"v"), 0);
+        assert_eq!(lines(b"<event"), 0);
         assert_eq!(last_event_start(text), Some(64));
+    }
+
+    // Expected indices by hand: chunks of 3, 2 | 4 | 1 events, the third
+    // chunk starting the second file; parsed in the order 2, 0, 3, 1.
+    #[test]
+    fn first_event_indices_are_known_once_earlier_chunks_are_parsed() {
+        let mut b = EventBases::default();
+        assert!(b.parsed(2, true, 4, 'c').is_empty());
+        assert_eq!(b.parsed(0, true, 3, 'a'), vec![(0, 0, 'a')]);
+        assert!(b.parsed(3, false, 1, 'd').is_empty());
+        assert_eq!(
+            b.parsed(1, false, 2, 'b'),
+            vec![(1, 3, 'b'), (2, 0, 'c'), (3, 4, 'd')]
+        );
+        assert!(b.waiting.is_empty());
     }
 }
