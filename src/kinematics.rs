@@ -232,6 +232,21 @@ pub fn transverse_magnitude([x, y]: [f64; 2]) -> f64 {
     (x * x + y * y).sqrt()
 }
 
+/// The azimuthal angle between two transverse vectors [rad], in [0, π]:
+/// |φ_a − φ_b| without computing either azimuth.
+///
+/// # Formula
+/// Δφ = atan2(|a × b|, a · b) with a × b = a_x b_y − a_y b_x and
+/// a · b = a_x b_x + a_y b_y (common practice: accurate at every angle,
+/// unlike acos of the normalised dot product near 0 and π). A zero vector
+/// counts as pointing along +x, as [`P4::phi`] gives it φ = 0.
+#[inline]
+pub fn delta_phi_between(a: [f64; 2], b: [f64; 2]) -> f64 {
+    let along_x = |v: [f64; 2]| if v == [0.0, 0.0] { [1.0, 0.0] } else { v };
+    let ([ax, ay], [bx, by]) = (along_x(a), along_x(b));
+    (ax * by - ay * bx).abs().atan2(ax * bx + ay * by)
+}
+
 /// |φ₁ − φ₂| wrapped into [0, π] radians.
 pub fn delta_phi(phi1: f64, phi2: f64) -> f64 {
     let two_pi = 2.0 * std::f64::consts::PI;

@@ -6,7 +6,8 @@
 
 use nalgebra::Vector3;
 use recoil::kinematics::{
-    ETA_BEAM_AXIS, P4, delta_phi, kallen, transverse_magnitude, two_body_momentum,
+    ETA_BEAM_AXIS, P4, delta_phi, delta_phi_between, kallen, transverse_magnitude,
+    two_body_momentum,
 };
 
 fn close(a: f64, b: f64, rel: f64) -> bool {
@@ -103,6 +104,50 @@ fn separations_python_math() {
         1e-12
     ));
     assert!(delta_phi(0.3, 0.3) == 0.0);
+    // The same separations from the transverse vectors, without azimuths.
+    let xy = |i: usize| [TABLE[i].0[1], TABLE[i].0[2]];
+    assert!(close(
+        delta_phi_between(xy(0), xy(1)),
+        2.4835314088949905,
+        1e-12
+    ));
+    assert!(close(
+        delta_phi_between(xy(1), xy(3)),
+        1.8400303001017058,
+        1e-12
+    ));
+}
+
+// Δφ from two transverse vectors agrees with the difference of their
+// azimuths on a grid of directions and lengths, is exactly π for opposite
+// vectors and 0 for parallel ones (by hand), and treats a zero vector as
+// pointing along +x, as P4::phi gives it φ = 0.
+#[test]
+fn delta_phi_between_vectors_agrees_with_azimuths() {
+    for i in 0..72 {
+        for j in 0..72 {
+            let (pa, pb) = (-3.1 + 0.0861 * i as f64, -3.1 + 0.0861 * j as f64);
+            let a = [12.5 * pa.cos(), 12.5 * pa.sin()];
+            let b = [830.0 * pb.cos(), 830.0 * pb.sin()];
+            let want = delta_phi(a[1].atan2(a[0]), b[1].atan2(b[0]));
+            let got = delta_phi_between(a, b);
+            assert!((got - want).abs() < 1e-13, "{pa} {pb}: {got} vs {want}");
+            assert!((0.0..=std::f64::consts::PI).contains(&got));
+        }
+    }
+    assert_eq!(
+        delta_phi_between([3.0, 4.0], [-6.0, -8.0]),
+        std::f64::consts::PI
+    );
+    assert_eq!(delta_phi_between([3.0, 4.0], [6.0, 8.0]), 0.0);
+    assert_eq!(
+        delta_phi_between([0.0, 0.0], [0.0, -2.0]),
+        std::f64::consts::FRAC_PI_2
+    );
+    assert_eq!(
+        delta_phi_between([-1.0, 0.0], [0.0, 0.0]),
+        std::f64::consts::PI
+    );
 }
 
 // Boost of (100, 30, −40, 50) by β = (0.1, −0.2, 0.3) (Jackson Eq. 11.19,

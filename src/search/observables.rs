@@ -10,7 +10,7 @@
 //! NaN is false: a cut on a missing object fails.
 
 use crate::detector::Reco;
-use crate::kinematics::{P4, delta_phi};
+use crate::kinematics::{P4, delta_phi_between};
 
 /// Object collections a search counts with.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -531,12 +531,11 @@ impl SelectedObjects {
     }
 
     fn min_dphi_jets_met(&self, n: Option<usize>) -> f64 {
-        let met_phi = self.met_xy_gev[1].atan2(self.met_xy_gev[0]);
         let n = n.unwrap_or(usize::MAX);
         self.jets
             .iter()
             .take(n)
-            .map(|j| delta_phi(j.phi(), met_phi))
+            .map(|j| delta_phi_between([j.px, j.py], self.met_xy_gev))
             .fold(f64::NAN, f64::min)
     }
 }
