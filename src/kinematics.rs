@@ -83,14 +83,15 @@ impl P4 {
         if p > 0.0 { self.e * self.pt() / p } else { 0.0 }
     }
 
-    /// Pseudorapidity η = −ln tan(θ/2) = asinh(pz/pT).
+    /// Pseudorapidity η = −ln tan(θ/2) = asinh(pz/pT), by
+    /// [`abs_eta_of`] with the sign of pz.
     ///
     /// Along the beam axis (pT = 0) it returns ±[`ETA_BEAM_AXIS`] with the
     /// sign of pz, and 0 for a particle at rest.
     pub fn eta(&self) -> f64 {
         let pt = self.pt();
         if pt > 0.0 {
-            (self.pz / pt).asinh()
+            abs_eta_of(pt, self.pz).copysign(self.pz)
         } else if self.pz > 0.0 {
             ETA_BEAM_AXIS
         } else if self.pz < 0.0 {
@@ -245,6 +246,23 @@ pub fn delta_phi_between(a: [f64; 2], b: [f64; 2]) -> f64 {
     let along_x = |v: [f64; 2]| if v == [0.0, 0.0] { [1.0, 0.0] } else { v };
     let ([ax, ay], [bx, by]) = (along_x(a), along_x(b));
     (ax * by - ay * bx).abs().atan2(ax * bx + ay * by)
+}
+
+/// |η| = asinh(|pz|/pT) of a momentum with transverse momentum `pt` > 0
+/// and longitudinal component `pz` (same units).
+///
+/// # Formula
+/// |η| = ln((|p| + |pz|)/pT) = ln_1p((|pz| + pz²/(|p| + pT))/pT), with
+/// |p| = √(pT² + pz²) and |p| − pT written as pz²/(|p| + pT) (no
+/// cancellation), so that small |η| keep their relative precision. One
+/// square root and `ln_1p`: std's `asinh` also calls `hypot`, whose guard
+/// against overflow costs several square roots (the squares cannot
+/// overflow at collider scales).
+#[inline]
+pub fn abs_eta_of(pt: f64, pz: f64) -> f64 {
+    let apz = pz.abs();
+    let p = (pt * pt + apz * apz).sqrt();
+    ((apz + apz * apz / (p + pt)) / pt).ln_1p()
 }
 
 /// |φ₁ − φ₂| wrapped into [0, π] radians.

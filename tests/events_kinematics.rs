@@ -6,7 +6,7 @@
 
 use nalgebra::Vector3;
 use recoil::kinematics::{
-    ETA_BEAM_AXIS, P4, delta_phi, delta_phi_between, kallen, transverse_magnitude,
+    ETA_BEAM_AXIS, P4, abs_eta_of, delta_phi, delta_phi_between, kallen, transverse_magnitude,
     two_body_momentum,
 };
 
@@ -116,6 +116,29 @@ fn separations_python_math() {
         1.8400303001017058,
         1e-12
     ));
+}
+
+// |η| by the closed form agrees with std's asinh(|pz|/pT) to a few units
+// in the last place from |η| ≈ 1e-12 to ≈ 14, at several momentum scales;
+// pT = 3, pz = 4 gives |p| = 5 and |η| = ln((5 + 4)/3) = ln 3 (by hand).
+#[test]
+fn abs_eta_of_agrees_with_asinh() {
+    for pt in [1e-3, 1.0, 13_600.0] {
+        for k in 0..=180 {
+            let x = 10f64.powf(-12.0 + 0.1 * k as f64);
+            for pz in [x * pt, -x * pt] {
+                let want = (pz / pt).abs().asinh();
+                let got = abs_eta_of(pt, pz);
+                assert!(
+                    (got - want).abs() <= 4.0 * f64::EPSILON * want,
+                    "pt {pt}, pz {pz}: {got} vs {want}"
+                );
+            }
+        }
+    }
+    assert!((abs_eta_of(3.0, 4.0) - 3f64.ln()).abs() <= f64::EPSILON);
+    assert_eq!(abs_eta_of(2.0, 0.0), 0.0);
+    assert_eq!(P4::new(5.0, 3.0, 0.0, -4.0).eta(), -abs_eta_of(3.0, 4.0));
 }
 
 // Δφ from two transverse vectors agrees with the difference of their

@@ -4,7 +4,7 @@
 //!
 //! Used throughout [`crate::detector`].
 
-use crate::kinematics::{ETA_BEAM_AXIS, P4};
+use crate::kinematics::{ETA_BEAM_AXIS, P4, abs_eta_of};
 
 /// A four-momentum with cached pT [GeV] and |η|.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -21,15 +21,14 @@ impl Measured {
     /// Caches pT and |η| of `p4`.
     ///
     /// # Formula
-    /// pT = √(px² + py²); |η| = ln((|p| + |pz|)/pT), the closed form of
-    /// asinh(|pz|/pT), equal to [`P4::abs_eta`] up to rounding; along the
-    /// beam axis (pT = 0, pz ≠ 0) |η| = [`ETA_BEAM_AXIS`], at rest 0.
+    /// pT = √(px² + py²); |η| = asinh(|pz|/pT) by [`abs_eta_of`], as
+    /// [`P4::abs_eta`]; along the beam axis (pT = 0, pz ≠ 0) |η| =
+    /// [`ETA_BEAM_AXIS`], at rest 0.
     pub fn new(p4: P4) -> Self {
-        let pt2 = p4.pt2();
-        let pt_gev = pt2.sqrt();
+        let pt_gev = p4.pt2().sqrt();
         let apz = p4.pz.abs();
         let abs_eta = if pt_gev > 0.0 {
-            (((pt2 + apz * apz).sqrt() + apz) / pt_gev).ln()
+            abs_eta_of(pt_gev, apz)
         } else if apz > 0.0 {
             ETA_BEAM_AXIS
         } else {
