@@ -351,6 +351,58 @@ fn weight_lines_in_other_layouts_read_like_the_usual_one() {
     );
 }
 
+// A `<rwgt>` block in the usual form is read at once by the layout of an
+// earlier block; any other block line by line. Each byte of the second
+// event's block, after its `<rwgt>` line, is set to each of a set of
+// bytes, and the file must read exactly as the same file does with that
+// `<rwgt>` line written `<rwgt> ` (a form the whole-block reader does not
+// take, which sends the block to the line reader): the same events bit
+// for bit, or the same error.
+#[test]
+fn weight_blocks_read_like_their_lines() {
+    let t = lhef_string(&Spec {
+        n_events: 3,
+        weight_names: names(3),
+        ..Default::default()
+    });
+    let first = t.find("<rwgt>\n").expect("a block") + 1;
+    let start = t[first..].find("<rwgt>\n").expect("a second block") + first;
+    let end = t[start..].find("</rwgt>\n").expect("its end") + start + "</rwgt>\n".len();
+    let dir = tempfile::tempdir().expect("temp dir");
+    let p = dir.path().join("w.lhe");
+    let read = |text: &[u8]| -> Result<Vec<Vec<u64>>, String> {
+        std::fs::write(&p, text).expect("write");
+        read_all(std::slice::from_ref(&p), ReadOptions::default())
+            .map(|(chunks, _)| {
+                chunks
+                    .iter()
+                    .flat_map(|(_, e)| e.iter().map(bits))
+                    .collect()
+            })
+            .map_err(|e| e.to_string())
+    };
+    let line_by_line = |text: &[u8]| -> Vec<u8> {
+        let mut v = text[..start].to_vec();
+        v.extend_from_slice(b"<rwgt> ");
+        v.extend_from_slice(&text[start + "<rwgt>".len()..]);
+        v
+    };
+    let mut n_ok = 0;
+    for at in start + "<rwgt>\n".len()..end {
+        for b in *b"09+-.eEx \t\n<>/'\"" {
+            let mut m = t.clone().into_bytes();
+            m[at] = b;
+            let got = read(&m);
+            let want = read(&line_by_line(&m));
+            assert_eq!(got, want, "byte {} set to {:?}", at - start, b as char);
+            n_ok += usize::from(got.is_ok());
+        }
+    }
+    // Both outcomes occur: many edits keep a valid file (a digit for a
+    // digit), many break it.
+    assert!(n_ok > 100, "{n_ok} valid edits");
+}
+
 // Determinism (CONVENTIONS.md): the same summary and chunking on 1 and 2
 // threads, bit for bit.
 #[test]

@@ -171,6 +171,7 @@ mod number;
 mod parse;
 mod particle_line;
 mod source;
+mod weight_block;
 mod weights;
 
 pub use census::{Census, CensusChunk, Inspection, Quantiles, inspect_sample};

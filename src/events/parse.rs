@@ -11,6 +11,7 @@
 use super::init::{FileInfo, attribute, lossy as show, opens_tag};
 use super::number::{Cursor, fields, parse_f64, parse_i32, trim, word};
 use super::particle_line::ShapeMemo;
+use super::weight_block::WeightMemo;
 use super::{Event, Particle};
 use crate::kinematics::P4;
 
@@ -87,6 +88,14 @@ impl<'a> Lines<'a> {
         self.rest = &self.rest[len..];
         self.line += 1;
     }
+
+    /// Steps over the next `n` lines, read in place as the first `len`
+    /// bytes.
+    #[inline]
+    fn step_over_lines(&mut self, len: usize, n: u64) {
+        self.rest = &self.rest[len..];
+        self.line += n;
+    }
 }
 
 /// Parses a chunk. `data` starts at a line start outside any event.
@@ -115,6 +124,7 @@ pub(crate) fn parse_chunk(
     let mut comment_line = 0;
     let tags = WeightTags::new(file);
     let mut shapes = ShapeMemo::default();
+    let mut blocks = WeightMemo::default();
     while let Some(raw) = lines.next_line() {
         let line = trim(raw);
         if line.is_empty() {
@@ -144,7 +154,15 @@ pub(crate) fn parse_chunk(
                 out.events.push(Event::default());
             }
             let ev = &mut out.events[n_events];
-            parse_event(&mut lines, file, &tags, &mut shapes, event_no, ev)?;
+            parse_event(
+                &mut lines,
+                file,
+                &tags,
+                &mut shapes,
+                &mut blocks,
+                event_no,
+                ev,
+            )?;
             add_sums(&mut out.sums, ev);
             n_events += 1;
         } else if line.starts_with(b"</LesHouchesEvents>") {
@@ -247,6 +265,7 @@ fn parse_event(
     file: &FileInfo,
     tags: &WeightTags,
     shapes: &mut ShapeMemo,
+    blocks: &mut WeightMemo,
     event_no: u64,
     ev: &mut Event,
 ) -> Result<(), BodyFault> {
@@ -423,6 +442,20 @@ fn parse_event(
         // Fast paths, for the usual layout only; anything else is read and
         // checked below, with the same result for every line these accept.
         if !in_weights {
+            // The whole `<rwgt>` block, by the layout of an earlier one.
+            if n_named == 0 && !saw_weights && n_names > 0 && lines.rest().starts_with(b"<rwgt>\n")
+            {
+                ev.weights.clear();
+                ev.weights.resize(n_names, f64::NAN);
+                if let Some((len, n)) = blocks.read(lines.rest(), &tags.open, &mut ev.weights) {
+                    lines.step_over_lines(len, n);
+                    saw_weights = true;
+                    n_named = n_names;
+                    continue;
+                }
+                // Line by line, from the state before the block.
+                ev.weights.clear();
+            }
             // The `<wgt>` line of the next declared name.
             if let Some(tag) = tags.open.get(n_named)
                 && let Some((v, len)) = fast_named_weight(lines.rest(), tag)

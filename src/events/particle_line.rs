@@ -47,7 +47,7 @@ const MAX_INT_DIGITS: usize = 9;
 /// other bytes at the same places (a writer prints one exponent letter,
 /// `e` or `E`, so it stays part of the shape).
 #[inline]
-fn canonical(c: u8) -> u8 {
+pub(super) fn canonical(c: u8) -> u8 {
     match c {
         b'0'..=b'9' => b'0',
         b'-' => b'+',
@@ -122,34 +122,46 @@ impl<const N: usize> Shape<N> {
     #[inline]
     fn matches_sse2(&self, window: &[u8; N]) -> bool {
         use std::arch::x86_64::{
-            __m128i, _mm_and_si128, _mm_cmpeq_epi8, _mm_max_epu8, _mm_movemask_epi8, _mm_or_si128,
-            _mm_set_epi64x, _mm_set1_epi8, _mm_sub_epi8,
+            _mm_and_si128, _mm_cmpeq_epi8, _mm_movemask_epi8, _mm_or_si128, _mm_set1_epi8,
         };
         const { assert!(N.is_multiple_of(BLOCK), "a shape is whole blocks") };
-        let load = |b: &[u8]| -> __m128i {
-            let (lo, hi) = words(b);
-            _mm_set_epi64x(hi as i64, lo as i64)
-        };
-        let zero = _mm_set1_epi8(b'0' as i8);
-        let nine = _mm_set1_epi8(9);
-        let minus = _mm_set1_epi8(b'-' as i8);
-        let minus_to_plus = _mm_set1_epi8((b'-' - b'+') as i8);
         let mut all = _mm_set1_epi8(-1);
         for k in 0..N / BLOCK {
             let at = k * BLOCK;
-            let x = load(&window[at..at + BLOCK]);
-            // Digits: x − '0' ≤ 9 unsigned; they become '0'.
-            let d = _mm_sub_epi8(x, zero);
-            let digit = _mm_cmpeq_epi8(_mm_max_epu8(d, nine), nine);
-            let mut y = _mm_sub_epi8(x, _mm_and_si128(digit, d));
-            // '-' becomes '+'.
-            y = _mm_sub_epi8(y, _mm_and_si128(_mm_cmpeq_epi8(x, minus), minus_to_plus));
-            let same = _mm_cmpeq_epi8(y, load(&self.canon[at..at + BLOCK]));
-            let skip = load(&self.beyond[at..at + BLOCK]);
+            let y = canonical_sse2(load_sse2(&window[at..at + BLOCK]));
+            let same = _mm_cmpeq_epi8(y, load_sse2(&self.canon[at..at + BLOCK]));
+            let skip = load_sse2(&self.beyond[at..at + BLOCK]);
             all = _mm_and_si128(all, _mm_or_si128(same, skip));
         }
         _mm_movemask_epi8(all) == 0xFFFF
     }
+}
+
+/// The first sixteen bytes of `b` as an SSE2 register (first byte lowest).
+#[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
+#[target_feature(enable = "sse2")]
+#[inline]
+pub(super) fn load_sse2(b: &[u8]) -> std::arch::x86_64::__m128i {
+    let (lo, hi) = words(b);
+    std::arch::x86_64::_mm_set_epi64x(hi as i64, lo as i64)
+}
+
+/// [`canonical`] of sixteen bytes at once (SSE2).
+#[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
+#[target_feature(enable = "sse2")]
+#[inline]
+pub(super) fn canonical_sse2(x: std::arch::x86_64::__m128i) -> std::arch::x86_64::__m128i {
+    use std::arch::x86_64::{
+        _mm_and_si128, _mm_cmpeq_epi8, _mm_max_epu8, _mm_set1_epi8, _mm_sub_epi8,
+    };
+    // Digits: x − '0' ≤ 9 unsigned; they become '0'.
+    let d = _mm_sub_epi8(x, _mm_set1_epi8(b'0' as i8));
+    let nine = _mm_set1_epi8(9);
+    let digit = _mm_cmpeq_epi8(_mm_max_epu8(d, nine), nine);
+    let y = _mm_sub_epi8(x, _mm_and_si128(digit, d));
+    // '-' becomes '+'.
+    let minus = _mm_cmpeq_epi8(x, _mm_set1_epi8(b'-' as i8));
+    _mm_sub_epi8(y, _mm_and_si128(minus, _mm_set1_epi8((b'-' - b'+') as i8)))
 }
 
 /// The index of the first byte at or after `i` that is not a blank.
