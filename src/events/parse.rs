@@ -443,7 +443,11 @@ fn parse_event(
         // checked below, with the same result for every line these accept.
         if !in_weights {
             // The whole `<rwgt>` block, by the layout of an earlier one.
-            if n_named == 0 && !saw_weights && n_names > 0 && lines.rest().starts_with(b"<rwgt>\n")
+            if n_named == 0
+                && !saw_weights
+                && n_names > 0
+                && blocks.may_read()
+                && lines.rest().starts_with(b"<rwgt>\n")
             {
                 ev.weights.clear();
                 ev.weights.resize(n_names, f64::NAN);

@@ -186,6 +186,13 @@ pub(super) struct WeightMemo {
 }
 
 impl WeightMemo {
+    /// False once the chunk's blocks have shown no usable layout
+    /// ([`MAX_LEARNED`] attempts), so that the caller can skip the call.
+    #[inline]
+    pub(super) fn may_read(&self) -> bool {
+        self.template.is_some() || self.learned < MAX_LEARNED
+    }
+
     /// Reads the `<rwgt>` block at the start of `text` into `out` (one
     /// value per declared name, all NaN on entry; `open[k]` the two forms
     /// of the k-th opening tag) by the remembered layout, learning the
