@@ -252,7 +252,9 @@ pub fn delta_phi_between(a: [f64; 2], b: [f64; 2]) -> f64 {
 /// and longitudinal component `pz` (same units).
 ///
 /// # Formula
-/// |η| = ln((|p| + |pz|)/pT) = ln_1p((|pz| + pz²/(|p| + pT))/pT), with
+/// |η| = −ln tan(θ/2) = asinh(|pz|/pT) = ln((|p| + |pz|)/pT) (the
+/// definition of pseudorapidity, common practice)
+/// = ln_1p((|pz| + pz²/(|p| + pT))/pT), with
 /// |p| = √(pT² + pz²) and |p| − pT written as pz²/(|p| + pT) (no
 /// cancellation), so that small |η| keep their relative precision. One
 /// square root and `ln_1p`: std's `asinh` also calls `hypot`, whose guard

@@ -1060,14 +1060,7 @@ fn error_event_tag_inside_a_comment() {
     let second = line_of(&t, line_of(&t, 0, "<event>"), "<event>");
     let mut lines: Vec<String> = t.lines().map(|l| format!("{l}\n")).collect();
     lines.insert(second - 1, "<!-- a note\n  <event>\n-->\n".into());
-    let e = err_of(lines.concat().as_bytes());
-    assert!(
-        e.contains(&format!(
-            "line {}: an <event> tag inside the comment opened on line {second}",
-            second + 1
-        )),
-        "{e}"
-    );
+    assert_event_tag_in_comment(&lines.concat(), second + 1, second);
 
     let t = lhef_string(&Spec {
         n_events: 9_000,
@@ -1085,11 +1078,16 @@ fn error_event_tag_inside_a_comment() {
     );
     let t = format!("{}{comment}{}", &t[..at], &t[at..]);
     let opened = t[..at].lines().count() + 1;
-    let e = err_of(t.as_bytes());
+    assert_event_tag_in_comment(&t, opened + 2, opened);
+}
+
+/// Asserts that `text` fails with an event tag on line `tag_line` inside
+/// the comment opened on line `opened`.
+fn assert_event_tag_in_comment(text: &str, tag_line: usize, opened: usize) {
+    let e = err_of(text.as_bytes());
     assert!(
         e.contains(&format!(
-            "line {}: an <event> tag inside the comment opened on line {opened}",
-            opened + 2
+            "line {tag_line}: an <event> tag inside the comment opened on line {opened}"
         )),
         "{e}"
     );

@@ -85,8 +85,7 @@ impl<'a> Lines<'a> {
     /// (newline included when there is one).
     #[inline]
     fn step_over(&mut self, len: usize) {
-        self.rest = &self.rest[len..];
-        self.line += 1;
+        self.step_over_lines(len, 1);
     }
 
     /// Steps over the next `n` lines, read in place as the first `len`
@@ -448,17 +447,12 @@ fn parse_event(
                 && n_names > 0
                 && blocks.may_read()
                 && lines.rest().starts_with(b"<rwgt>\n")
+                && let Some((len, n)) = blocks.read(lines.rest(), &tags.open, &mut ev.weights)
             {
-                ev.weights.clear();
-                ev.weights.resize(n_names, f64::NAN);
-                if let Some((len, n)) = blocks.read(lines.rest(), &tags.open, &mut ev.weights) {
-                    lines.step_over_lines(len, n);
-                    saw_weights = true;
-                    n_named = n_names;
-                    continue;
-                }
-                // Line by line, from the state before the block.
-                ev.weights.clear();
+                lines.step_over_lines(len, n);
+                saw_weights = true;
+                n_named = n_names;
+                continue;
             }
             // The `<wgt>` line of the next declared name.
             if let Some(tag) = tags.open.get(n_named)

@@ -342,10 +342,10 @@ impl IntColumns {
     }
 }
 
-/// Shape changes learned at most per chunk and kind: a file whose lines
-/// keep changing shape stops paying for learning and is read field by
-/// field.
-const MAX_LEARNED: u32 = 64;
+/// Shape changes learned at most per chunk and kind (also the weight-block
+/// templates of `weight_block.rs`): a file whose lines keep changing shape
+/// stops paying for learning and is read field by field.
+pub(super) const MAX_LEARNED: u32 = 64;
 
 /// Places in an event with an integer shape of their own; later particles
 /// share the last.

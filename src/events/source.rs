@@ -404,10 +404,14 @@ impl EventSource {
                 for (file_index, file) in info.files.iter().enumerate() {
                     let path = &file.path;
                     let mut starts_file = true;
-                    // Plain files: one memory-mapped window per chunk.
-                    let mapped = MappedFile::open(path)
-                        .map_err(|e| io_err(path, None, 0, e))?
-                        .filter(|m| m.len >= file.body_offset);
+                    // Plain files: one memory-mapped window per chunk (gzip
+                    // was detected when the header was read).
+                    let mapped = if file.gzip {
+                        None
+                    } else {
+                        MappedFile::open(path).map_err(|e| io_err(path, None, 0, e))?
+                    }
+                    .filter(|m| m.len >= file.body_offset);
                     if let Some(m) = mapped {
                         // The same cuts as the reading loop below: each
                         // window starts at the previous cut and holds at

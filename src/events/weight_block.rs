@@ -14,16 +14,12 @@
 //! read line by line, with the same result.
 
 use super::number::{fixed_layout, fixed_value_sse2, words};
-use super::particle_line::canonical;
+use super::particle_line::{MAX_LEARNED, canonical};
 #[cfg(all(target_arch = "x86_64", target_feature = "sse2"))]
 use super::particle_line::{canonical_sse2, load_sse2};
 
 /// Width of a block compared at once [bytes].
 const BLOCK: usize = 16;
-
-/// Templates learned at most per chunk: a file whose weight blocks keep
-/// changing form stops paying for learning.
-const MAX_LEARNED: u32 = 64;
 
 /// The layout of one `<rwgt>` block.
 #[derive(Debug, Clone)]
@@ -156,23 +152,23 @@ impl Template {
         _mm_movemask_epi8(all) == 0xFFFF
     }
 
-    /// The block's length, with its values in `out` (one per name), when
-    /// `text` starts with a block of this layout and every value lies in
-    /// the exact conversion range; `None` otherwise, with `out` all NaN.
+    /// The block's length, with its values in `out` (one per name, in
+    /// declared order), when `text` starts with a block of this layout and
+    /// every value lies in the exact conversion range; `None` otherwise,
+    /// with `out` empty. `out` is empty on entry.
     #[inline]
-    fn read(&self, text: &[u8], out: &mut [f64]) -> Option<usize> {
-        if out.len() != self.values.len() || !self.matches(text) {
+    fn read(&self, text: &[u8], out: &mut Vec<f64>) -> Option<usize> {
+        if !self.matches(text) {
             return None;
         }
+        out.resize(self.values.len(), 0.0);
         for (x, &(at, digits_at)) in out.iter_mut().zip(&self.values) {
             let (w0, w1) = words(&text[digits_at..]);
-            match fixed_value_sse2(text[at], w0, w1) {
-                Some(v) => *x = v,
-                None => {
-                    out.fill(f64::NAN);
-                    return None;
-                }
-            }
+            let Some(v) = fixed_value_sse2(text[at], w0, w1) else {
+                out.clear();
+                return None;
+            };
+            *x = v;
         }
         Some(self.len)
     }
@@ -193,18 +189,18 @@ impl WeightMemo {
         self.template.is_some() || self.learned < MAX_LEARNED
     }
 
-    /// Reads the `<rwgt>` block at the start of `text` into `out` (one
-    /// value per declared name, all NaN on entry; `open[k]` the two forms
-    /// of the k-th opening tag) by the remembered layout, learning the
-    /// layout from this block when there is none or it differs: the
-    /// block's length and number of lines, or `None` (with `out` all NaN)
-    /// to read it line by line.
+    /// Reads the `<rwgt>` block at the start of `text` into `out` (empty
+    /// on entry; one value per declared name, `open[k]` the two forms of
+    /// the k-th opening tag) by the remembered layout, learning the layout
+    /// from this block when there is none or it differs: the block's
+    /// length and number of lines, or `None` (with `out` still empty) to
+    /// read it line by line.
     #[inline]
     pub(super) fn read(
         &mut self,
         text: &[u8],
         open: &[[Vec<u8>; 2]],
-        out: &mut [f64],
+        out: &mut Vec<f64>,
     ) -> Option<(usize, u64)> {
         let lines = open.len() as u64 + 2;
         if let Some(t) = &self.template
@@ -249,21 +245,21 @@ mod tests {
         };
         let first = block("+1.2500000000e+00", "-3.1415926536E-02");
         let mut memo = WeightMemo::default();
-        let mut out = [f64::NAN; 2];
+        let mut out = Vec::new();
         let (len, lines) = memo
             .read(first.as_bytes(), &names, &mut out)
             .expect("learned");
         assert_eq!(&first[len..], "</event>\n");
         assert_eq!(lines, 4);
-        assert_eq!(out, [1.25, "-3.1415926536E-02".parse().unwrap()]);
+        assert_eq!(out, [1.25, "-3.1415926536E-02".parse::<f64>().unwrap()]);
         // Another block of the same form, by the template.
         let second = block("-9.8765432109e+21", "+4.0000000000E-12");
-        let mut out = [f64::NAN; 2];
+        let mut out = Vec::new();
         memo.read(second.as_bytes(), &names, &mut out)
             .expect("same form");
         assert_eq!(out, [-9.8765432109e+21, 4.0e-12]);
         assert_eq!(memo.learned, 1);
-        // Other forms are left to the line reader, with `out` all NaN.
+        // Other forms are left to the line reader, with `out` empty.
         for other in [
             block("1.25", "+1.0000000000e+00"),
             block("+1.2500000000e+00", "+1.0000000000e+00").replace("'a'", "'b'"),
@@ -271,12 +267,12 @@ mod tests {
             block("+1.2500000000e+00", "+1.0000000000e+00").replace("</rwgt>", "</rwgt >"),
             block("+1.2500000000e-30", "+1.0000000000e+00"),
         ] {
-            let mut out = [f64::NAN; 2];
+            let mut out = Vec::new();
             assert!(
                 memo.read(other.as_bytes(), &names, &mut out).is_none(),
                 "{other}"
             );
-            assert!(out.iter().all(|v| v.is_nan()));
+            assert!(out.is_empty());
         }
         assert!(Template::learn(b"<rwgt>\n</rwgt>\n", &[]).is_none());
     }
