@@ -193,9 +193,10 @@ impl P4 {
         self.boost(-frame.beta())
     }
 
-    /// Azimuthal separation |Δφ| wrapped into [0, π] radians.
+    /// Azimuthal separation |Δφ| in [0, π] radians, by
+    /// [`delta_phi_between`] of the transverse momenta.
     pub fn delta_phi(&self, other: &P4) -> f64 {
-        delta_phi(self.phi(), other.phi())
+        delta_phi_between([self.px, self.py], [other.px, other.py])
     }
 
     /// Angular distance ΔR = √(Δη² + Δφ²) using pseudorapidity.

@@ -104,18 +104,6 @@ fn separations_python_math() {
         1e-12
     ));
     assert!(delta_phi(0.3, 0.3) == 0.0);
-    // The same separations from the transverse vectors, without azimuths.
-    let xy = |i: usize| [TABLE[i].0[1], TABLE[i].0[2]];
-    assert!(close(
-        delta_phi_between(xy(0), xy(1)),
-        2.4835314088949905,
-        1e-12
-    ));
-    assert!(close(
-        delta_phi_between(xy(1), xy(3)),
-        1.8400303001017058,
-        1e-12
-    ));
 }
 
 // |η| by the closed form agrees with std's asinh(|pz|/pT) to a few units
